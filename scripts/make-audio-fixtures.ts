@@ -2,8 +2,9 @@
 //
 // Run:   npx tsx scripts/make-audio-fixtures.ts
 // Needs: Debian's command-line encoders, for generating fixtures only (never used at run time):
-//          apt-get install -y sox flac lame vorbis-tools opus-tools mkvtoolnix
-//        (sox is optional; flac, lame, oggenc, opusenc and mkvmerge are called.)
+//          apt-get install -y flac lame vorbis-tools opus-tools mkvtoolnix
+//        (calls flac, lame, oggenc, opusenc and mkvmerge; made with flac 1.4.2, LAME 3.100,
+//        vorbis-tools 1.4.2, opus-tools 0.2 / libopus 1.3.1, mkvmerge 74.0.0 from Debian 12).
 // Output: every file listed in tests/fixtures/audio/README.md, rewritten in place. WAV files come
 //         from our own encoder (server/analysis/wav.ts); compressed ones are encoded from WAV
 //         sources built the same way. Serial numbers and seeds are fixed so a re-run gives the
@@ -219,9 +220,9 @@ run('oggenc', ['--quiet', '-q', '2', '-s', '1002', '-o', join(outDir, 'vorbis-st
 run('oggenc', ['--quiet', '-q', '2', '-s', '1003', '-o', join(outDir, 'vorbis-mono-8000-220.ogg'), source('v3', 8000, 1, 220, [0.5])])
 
 // Ogg Opus (opusenc). Opus always decodes at 48 kHz; the source rate is only recorded in OpusHead.
-function opus (name: string, src: string, serial: string, bitrate = '32') {
+function opus (name: string, src: string, serial: string, bitrate = '32', extra: string[] = []) {
   const path = join(outDir, name)
-  run('opusenc', ['--quiet', '--bitrate', bitrate, '--serial', serial, src, path])
+  run('opusenc', ['--quiet', '--bitrate', bitrate, '--serial', serial, ...extra, src, path])
   return path
 }
 const opusMono = opus('opus-mono-48000-440.opus', source('o1', 48000, 1, 440, [0.5]), '2001')
@@ -239,15 +240,33 @@ run('mkvmerge', ['--quiet', '--webm', '--no-date', '--deterministic', '42', '--d
     const audio = pk.slice(2) // skip OpusHead and OpusTags
     write(name, recorderWebm(head, audio, channels, frameMs, 400))
   }
-  // A recording cut off mid-cluster (a tab closed during upload): 70 % of the bytes.
-  const whole = readFileSync(join(outDir, 'webm-recorder-opus-mono-48000-440.webm'))
-  write('webm-recorder-truncated-70pct-440.webm', whole.subarray(0, Math.floor(whole.length * 0.7)))
+}
+
+// Files cut off at 70 % of their bytes (an upload or a recording that stopped abruptly), from
+// 2-s sources, so about 1.4 s survives: enough to be used, flagged as truncated.
+{
+  const cut = (bytes: Uint8Array, name: string) => write(name, bytes.subarray(0, Math.floor(bytes.length * 0.7)))
+  // Short Ogg pages (opusenc --max-delay) so a cut loses little more than the page it falls in.
+  const opus2 = opus('opus-scratch-2s.opus', source('t1', 48000, 2, 440, [0.5]), '2004', '32', ['--max-delay', '100'])
+  const pk = oggPackets(readFileSync(opus2))
+  const webm2 = recorderWebm(pk[0]!, pk.slice(2), 1, 20, 400)
+  cut(webm2, 'webm-recorder-truncated-70pct-of-2s-440.webm')
+  cut(readFileSync(opus2), 'opus-truncated-70pct-of-2s-440.opus')
+  rmSync(opus2)
+  const flac2 = join(work, 't2.flac')
+  run('flac', ['--silent', '--best', '--force', '-o', flac2, source('t2', 44100, 2, 220, [0.5])])
+  cut(readFileSync(flac2), 'flac-truncated-70pct-of-2s-220.flac')
+  const mp32 = join(work, 't3.mp3')
+  run('lame', ['--quiet', '-b', '64', source('t3', 44100, 2, 440, [0.5]), mp32])
+  cut(readFileSync(mp32), 'mp3-truncated-70pct-of-2s-440.mp3')
+  // The same 2-s recorder-style WebM with its middle third overwritten (below).
+  writeFileSync(join(work, 'webm2.webm'), webm2)
 }
 
 // Compressed streams damaged in the middle: every byte of the middle third overwritten.
 {
   const damage = (from: string, to: string) => {
-    const b = new Uint8Array(readFileSync(join(outDir, from)))
+    const b = new Uint8Array(readFileSync(from.includes('/') ? from : join(outDir, from)))
     let s = 777
     for (let i = Math.floor(b.length / 3); i < Math.floor((2 * b.length) / 3); i++) { s = (s * 1103515245 + 12345) >>> 0; b[i] = s >>> 24 }
     write(to, b)
@@ -255,7 +274,7 @@ run('mkvmerge', ['--quiet', '--webm', '--no-date', '--deterministic', '42', '--d
   damage('flac-mono-44100-440.flac', 'corrupt-middle.flac')
   damage('mp3-mono-44100-440.mp3', 'corrupt-middle.mp3')
   damage('opus-mono-48000-440.opus', 'corrupt-middle.opus')
-  damage('webm-opus-mono-48000-440.webm', 'corrupt-middle.webm')
+  damage(join(work, 'webm2.webm'), 'corrupt-middle.webm')
   // A file that keeps only the format's magic and then stops.
   write('corrupt-flac-header-only.flac', readFileSync(join(outDir, 'flac-mono-44100-440.flac')).subarray(0, 20))
   write('corrupt-opus-headers-only.opus', readFileSync(opusMono).subarray(0, 200))
