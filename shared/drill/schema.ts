@@ -1,4 +1,9 @@
 import { z } from 'zod'
+import { TuningError } from '../tuning/errors'
+import type { TuningIssue } from '../tuning/errors'
+import { parseKey, parseNote, parsePitchClass } from '../tuning/pitch'
+import { parseScala } from '../tuning/scala'
+import { INSTRUMENTS } from '../tuning/transpose'
 
 /** Tuning systems a drill can be scored against (names are ours; the maths is the trade's). */
 export const SYSTEM_NAMES = ['equal', 'just-root', 'just-tonic', 'just-common', 'pythagorean', 'meantone', 'scala'] as const
@@ -10,18 +15,41 @@ export const A4_MAX = 466
 /** Options of a tuning system; each system reads only the ones it needs. */
 export const SystemOptions = z.object({
   name: z.enum(SYSTEM_NAMES),
-  /** just-root / just-common: the seventh as 7/4 ('harmonic') or 9/5 and 16/9 ('5-limit'). */
+  /**
+   * just-root / just-common: the dominant (and suspended) seventh as 7/4 ('harmonic') or 16/9
+   * ('5-limit'). Minor-seventh chords always take 9/5 and half-diminished sevenths 16/9.
+   */
   seventh: z.enum(['harmonic', '5-limit']).default('harmonic'),
   /** just-tonic / meantone / scala: the tonic (pitch class such as "Bb"); defaults to the drill's key. */
   tonic: z.string().min(1).optional(),
-  /** pythagorean: first note of the chain of fifths (defaults to the tonic). */
+  /**
+   * pythagorean / meantone: first note of the chain of fifths. Defaults to three fifths below a major
+   * tonic (E♭ for C major) or four below a minor one (A♭ for C minor), so the key's own chords avoid the wolf.
+   */
   start: z.string().min(1).optional(),
-  /** pythagorean: the note whose fifth above is the wolf (defaults to 11 fifths above start). */
+  /** pythagorean / meantone: the note whose fifth above is the wolf (defaults to 11 fifths above start). */
   wolf: z.string().min(1).optional(),
   /** meantone: fraction of the syntonic comma each fifth is narrowed by ("1/4", "1/6", 0.25). */
   fraction: z.union([z.string().regex(/^\s*\d+\s*\/\s*\d+\s*$/, 'a fraction such as 1/4'), z.number().positive().max(1)]).default('1/4'),
   /** scala: the .scl file's text. */
-  scala: z.string().optional(),
+  scala: z.string().max(200_000).optional(),
+}).superRefine((sys, ctx) => {
+  for (const field of ['tonic', 'start', 'wolf'] as const) {
+    const v = sys[field]
+    if (v !== undefined) {
+      try { parsePitchClass(v) } catch (e) { ctx.addIssue({ code: 'custom', path: [field], message: (e as Error).message }) }
+    }
+  }
+  if (typeof sys.fraction === 'string') {
+    const [n, d] = sys.fraction.split('/').map(x => Number(x.trim()))
+    if (!(n! > 0) || !(d! > 0) || n! > d!) ctx.addIssue({ code: 'custom', path: ['fraction'], message: 'the comma fraction must be above 0 and at most 1, such as 1/4' })
+  }
+  if (sys.name === 'scala') {
+    if (!sys.scala) ctx.addIssue({ code: 'custom', path: ['scala'], message: 'the scala system needs the text of a Scala .scl file' })
+    else {
+      try { parseScala(sys.scala) } catch (e) { ctx.addIssue({ code: 'custom', path: ['scala'], message: (e as Error).message }) }
+    }
+  }
 })
 export type SystemOptions = z.infer<typeof SystemOptions>
 
@@ -56,18 +84,60 @@ export const DrillDocument = z.object({
   chords: z.array(DrillChord).min(1).max(500),
 }).superRefine((drill, ctx) => {
   const names = new Set<string>()
+  try { parseKey(drill.key) } catch (e) { ctx.addIssue({ code: 'custom', path: ['key'], message: (e as Error).message }) }
   drill.parts.forEach((p, i) => {
     if (names.has(p.name)) ctx.addIssue({ code: 'custom', path: ['parts', i, 'name'], message: `duplicate part name "${p.name}"` })
     names.add(p.name)
+    if (p.instrument !== undefined && !Object.hasOwn(INSTRUMENTS, p.instrument)) {
+      ctx.addIssue({ code: 'custom', path: ['parts', i, 'instrument'], message: `"${p.instrument}" is not an instrument we know (for example trumpet-bb, horn-f, alto-sax-eb, voice-tenor)` })
+    }
   })
   drill.chords.forEach((c, i) => {
     for (const name of names) {
       if (!(name in c.notes)) ctx.addIssue({ code: 'custom', path: ['chords', i, 'notes', name], message: `chord ${i + 1} has no note or rest for part "${name}"` })
     }
-    for (const name of Object.keys(c.notes)) {
+    for (const [name, note] of Object.entries(c.notes)) {
       if (!names.has(name)) ctx.addIssue({ code: 'custom', path: ['chords', i, 'notes', name], message: `chord ${i + 1} names unknown part "${name}"` })
+      else if (note !== null) {
+        try { parseNote(note) } catch (e) { ctx.addIssue({ code: 'custom', path: ['chords', i, 'notes', name], message: `chord ${i + 1}, part "${name}": ${(e as Error).message}` }) }
+      }
     }
   })
 })
 export type DrillDocument = z.infer<typeof DrillDocument>
 export type DrillInput = z.input<typeof DrillDocument>
+
+/** Joins a zod issue path as "chords.2.notes.Alto" (indexes from 0). */
+export function issuePath(path: readonly PropertyKey[]): string {
+  return path.map(p => String(p)).join('.') || '(document)'
+}
+
+function fromZod(error: z.ZodError, what: string, prefix: string): TuningError {
+  const issues: TuningIssue[] = error.issues.map(i => ({ path: issuePath([...(prefix ? [prefix] : []), ...i.path]), message: i.message }))
+  const shown = issues.slice(0, 5).map(i => `${i.path}: ${i.message}`).join('; ')
+  const more = issues.length > 5 ? ` (and ${issues.length - 5} more)` : ''
+  return new TuningError(`invalid_${what}`, `The ${what} is not valid: ${shown}${more}`, issues[0]?.path ?? null, issues)
+}
+
+/**
+ * Validates a drill document (an object or its JSON text) and fills in defaults. Throws
+ * TuningError('invalid_json' | 'invalid_drill') whose message and `issues` name each failing field.
+ */
+export function parseDrill(input: unknown): DrillDocument {
+  let value = input
+  if (typeof input === 'string') {
+    try { value = JSON.parse(input) } catch (e) {
+      throw new TuningError('invalid_json', `The drill document is not valid JSON: ${(e as Error).message}`)
+    }
+  }
+  const result = DrillDocument.safeParse(value)
+  if (!result.success) throw fromZod(result.error, 'drill', '')
+  return result.data
+}
+
+/** Validates tuning-system options and fills in defaults; errors name the field as "system.<field>". */
+export function parseSystem(input: unknown): SystemOptions {
+  const result = SystemOptions.safeParse(input)
+  if (!result.success) throw fromZod(result.error, 'system', 'system')
+  return result.data
+}

@@ -1,0 +1,179 @@
+import pkg from '@tonejs/midi'
+import { Key } from '@tonaljs/tonal'
+import { TuningError } from '../tuning/errors'
+import { mod, parseKey } from '../tuning/pitch'
+import type { DrillDocument, DrillInput, SystemOptions } from './schema'
+import { DrillDocument as DrillSchema } from './schema'
+
+// @tonejs/midi is CommonJS: the named import fails in the built server.
+const { Midi } = pkg
+
+export interface MidiImportOptions {
+  title?: string
+  /** Key as "Eb major"; defaults to the file's first key signature, else C major. */
+  key?: string
+  a4?: number
+  system?: SystemOptions
+  tolerance?: number
+  /** Instrument id per part name (track name). */
+  instruments?: Record<string, string>
+  /** Notes about the import a person should know (tempo changes, skipped drum tracks) are pushed here. */
+  warnings?: string[]
+}
+
+const SEMI: Record<string, number> = { C: 0, D: 2, E: 4, F: 5, G: 7, A: 9, B: 11 }
+const NEUTRAL = ['C', 'C#', 'D', 'Eb', 'E', 'F', 'F#', 'G', 'Ab', 'A', 'Bb', 'B']
+const SHARPS = ['C', 'C#', 'D', 'D#', 'E', 'F', 'F#', 'G', 'G#', 'A', 'A#', 'B']
+const FLATS = ['C', 'Db', 'D', 'Eb', 'E', 'F', 'Gb', 'G', 'Ab', 'A', 'Bb', 'B']
+
+/** Spells MIDI numbers in a key: the key's own scale (with the minor's raised sixth and seventh) first. */
+function speller(key: string): (midi: number) => string {
+  const k = parseKey(key)
+  const byChroma: (string | undefined)[] = new Array(12)
+  let alteration = 0
+  if (k.mode === 'major') {
+    const mk = Key.majorKey(k.tonic.pc)
+    alteration = mk.alteration
+    for (const pc of mk.scale) byChroma[chromaOf(pc)] ??= pc
+  } else {
+    const mk = Key.minorKey(k.tonic.pc)
+    alteration = mk.alteration
+    for (const pc of [...mk.natural.scale, ...mk.harmonic.scale, ...mk.melodic.scale]) byChroma[chromaOf(pc)] ??= pc
+  }
+  const fallback = alteration < 0 ? FLATS : alteration > 0 ? SHARPS : NEUTRAL
+  return (midi: number) => {
+    const pc = byChroma[mod(midi, 12)] ?? fallback[mod(midi, 12)]!
+    const base = SEMI[pc[0]!]! + (pc.slice(1).startsWith('b') ? -(pc.length - 1) : pc.length - 1)
+    return `${pc}${(midi - base) / 12 - 1}`
+  }
+}
+
+function chromaOf(pc: string): number {
+  return mod(SEMI[pc[0]!]! + (pc.slice(1).startsWith('b') ? -(pc.length - 1) : pc.length - 1), 12)
+}
+
+interface PartNote { midi: number, start: number, end: number }
+
+/**
+ * Builds a drill from a Standard MIDI File: one part per track with notes (named after the track),
+ * a chord for every time span in which the sounding set does not change (a re-struck note starts a
+ * new chord), beats in quarter notes, the tempo from the file's first tempo event (120 when none).
+ * Errors name the track and bar: no tracks with notes, overlapping notes within one part.
+ */
+export function midiToDrill(bytes: Uint8Array, opts: MidiImportOptions = {}): DrillDocument {
+  if (!(bytes instanceof Uint8Array) || bytes.length < 14 || String.fromCharCode(...bytes.subarray(0, 4)) !== 'MThd') {
+    throw new TuningError('midi_unreadable', 'This is not a Standard MIDI File (it does not start with an MThd header)')
+  }
+  const declaredTracks = (bytes[10]! << 8) | bytes[11]!
+  if (declaredTracks === 0) throw new TuningError('midi_no_tracks', 'The MIDI file has no tracks')
+  let midi: InstanceType<typeof Midi>
+  try {
+    midi = new Midi(bytes)
+  } catch (e) {
+    throw new TuningError('midi_unreadable', `The MIDI file cannot be read: ${(e as Error).message}`)
+  }
+  const ppq = midi.header.ppq
+  if (!(ppq > 0)) throw new TuningError('midi_unreadable', 'The MIDI file uses SMPTE time, which a drill cannot follow; export it with ticks per quarter note')
+  const bar = (ticks: number) => Math.floor(midi.header.ticksToMeasures(ticks) + 1e-9) + 1
+
+  const fileKey = midi.header.keySignatures[0]
+  let key = opts.key ?? 'C major'
+  if (!opts.key && fileKey) {
+    const candidate = `${fileKey.key} ${fileKey.scale === 'minor' ? 'minor' : 'major'}`
+    try {
+      parseKey(candidate)
+      key = candidate
+    } catch {
+      // Some writers store the key-signature byte out of range; spell in C rather than refuse the file.
+      opts.warnings?.push('The file\'s key signature cannot be read; the drill is spelled in C major')
+    }
+  }
+  const spell = speller(key)
+
+  const parts: { name: string, notes: PartNote[] }[] = []
+  const used = new Set<string>()
+  midi.tracks.forEach((track, ti) => {
+    if (!track.notes.length) return
+    if (track.instrument.percussion) {
+      opts.warnings?.push(`Track ${ti + 1} "${track.name}" is a drum track and was left out`)
+      return
+    }
+    let name = (track.name || '').trim().slice(0, 60) || `Track ${ti + 1}`
+    for (let n = 2; used.has(name); n++) name = `${(track.name || `Track ${ti + 1}`).trim().slice(0, 54)} (${n})`
+    used.add(name)
+    const label = `Track ${ti + 1} "${name}"`
+    const notes = track.notes
+      .filter(n => n.durationTicks > 0)
+      .map(n => ({ midi: n.midi, start: n.ticks, end: n.ticks + n.durationTicks }))
+      .sort((a, b) => a.start - b.start || a.midi - b.midi)
+    // Notation programs sometimes let a legato note overlap the next by a few ticks; trim those.
+    const legato = ppq / 32
+    for (let i = 1; i < notes.length; i++) {
+      const a = notes[i - 1]!
+      const b = notes[i]!
+      if (b.start < a.end) {
+        if (b.start > a.start && a.end - b.start <= legato) { a.end = b.start; continue }
+        throw new TuningError('midi_overlap',
+          `${label} has overlapping notes in bar ${bar(b.start)} (${spell(a.midi)} and ${spell(b.midi)} sound together); a part plays one note at a time, so put each voice on its own track`,
+          `track ${ti + 1}, bar ${bar(b.start)}`)
+      }
+    }
+    parts.push({ name, notes })
+  })
+  if (!parts.length) throw new TuningError('midi_no_tracks', 'The MIDI file has no tracks with notes')
+  if (parts.length > 16) throw new TuningError('midi_too_many_parts', `The MIDI file has ${parts.length} tracks with notes; a drill has at most 16 parts`)
+
+  const times = new Set<number>()
+  for (const p of parts) for (const n of p.notes) { times.add(n.start); times.add(n.end) }
+  if (!times.has(0)) times.add(0)
+  const edges = [...times].sort((a, b) => a - b)
+  const cursor = parts.map(() => 0)
+  type Segment = { start: number, end: number, sounding: (PartNote | null)[] }
+  const segments: Segment[] = []
+  for (let i = 0; i + 1 < edges.length; i++) {
+    const start = edges[i]!
+    const end = edges[i + 1]!
+    const sounding = parts.map((p, pi) => {
+      while (cursor[pi]! < p.notes.length && p.notes[cursor[pi]!]!.end <= start) cursor[pi]!++
+      const n = p.notes[cursor[pi]!]
+      return n && n.start <= start && start < n.end ? n : null
+    })
+    const last = segments[segments.length - 1]
+    if (last && last.sounding.every((n, pi) => n === sounding[pi])) last.end = end
+    else segments.push({ start, end, sounding })
+  }
+  if (segments.length > 500) throw new TuningError('midi_too_long', `The MIDI file makes ${segments.length} chords; a drill has at most 500`)
+
+  const chords = segments.map(s => {
+    const beats = Math.round(((s.end - s.start) / ppq) * 1e6) / 1e6
+    if (beats > 64) throw new TuningError('midi_too_long', `Bar ${bar(s.start)}: a chord or rest lasts ${beats} beats; a drill chord lasts at most 64`, `bar ${bar(s.start)}`)
+    return { beats, notes: Object.fromEntries(parts.map((p, pi) => [p.name, s.sounding[pi] ? spell(s.sounding[pi]!.midi) : null])) }
+  })
+
+  const tempos = midi.header.tempos
+  const tempo = Math.round((tempos[0]?.bpm ?? 120) * 1000) / 1000
+  if (tempos.length > 1 && tempos.some(t => Math.abs(t.bpm - tempos[0]!.bpm) > 0.01)) {
+    opts.warnings?.push(`The file changes tempo; the drill uses its first tempo, ${tempo} beats per minute`)
+  }
+  if (tempo < 20 || tempo > 300) {
+    throw new TuningError('midi_tempo', `The file's tempo is ${tempo} beats per minute; a drill's tempo is from 20 to 300`)
+  }
+
+  const input: DrillInput = {
+    title: (opts.title ?? midi.header.name ?? '').trim().slice(0, 120) || 'Imported from MIDI',
+    key,
+    tempo,
+    ...(opts.a4 !== undefined ? { a4: opts.a4 } : {}),
+    ...(opts.system ? { system: opts.system } : {}),
+    ...(opts.tolerance !== undefined ? { tolerance: opts.tolerance } : {}),
+    parts: parts.map(p => ({ name: p.name, ...(opts.instruments?.[p.name] ? { instrument: opts.instruments[p.name] } : {}) })),
+    chords,
+  }
+  const result = DrillSchema.safeParse(input)
+  if (!result.success) {
+    const issue = result.error.issues[0]!
+    const path = issue.path.map(String).join('.')
+    throw new TuningError('invalid_drill', `The imported drill is not valid: ${path}: ${issue.message}`, path)
+  }
+  return result.data
+}
