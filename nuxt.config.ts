@@ -55,6 +55,17 @@ export default defineNuxtConfig({
       /** Longest accepted take in seconds (20 minutes). */
       maxDurationS: 1200,
     },
+    /** Sealed session cookie (nuxt-auth-utils); the password comes from NUXT_SESSION_PASSWORD. */
+    session: {
+      /** Seconds a sign-in lasts (14 days). */
+      maxAge: 60 * 60 * 24 * 14,
+    },
+    /** Sign-in rate limit: failed attempts allowed per e-mail address and per client address within windowS seconds. */
+    login: {
+      maxFailuresPerAccount: 5,
+      maxFailuresPerAddress: 30,
+      windowS: 900,
+    },
     /** Largest JSON body in bytes. */
     maxJsonBytes: 1024 * 1024,
     /** Public address used in mailed links. */
@@ -66,6 +77,19 @@ export default defineNuxtConfig({
   },
   nitro: {
     experimental: { tasks: false },
+    // Node 20.19 loads packages through their "module-sync" export condition, which the file
+    // tracer only follows on Node 22: without it .output lacks e.g. async-function/require.mjs,
+    // which the embedded object store (s3rver → koa → get-intrinsic) needs.
+    externals: { traceOptions: { conditions: ['production', 'node', 'module-sync'] } },
+    hooks: {
+      // The analysis worker thread needs an entry file of its own (Nitro's chunks cannot be one):
+      // bundle it next to the built server entry. Development builds it on start instead.
+      async compiled (nitro) {
+        if (nitro.options.dev) return
+        const { buildAnalysisWorker, WORKER_BUNDLE } = await import('./server/analysis/worker-build')
+        await buildAnalysisWorker(nitro.options.rootDir, `${nitro.options.output.serverDir}/${WORKER_BUNDLE}`)
+      },
+    },
   },
   vite: {
     server: { host: 'localhost' },

@@ -18,6 +18,7 @@ export default {
         'raised': SURFACES.raised,
         'sunk': SURFACES.sunk,
         'rule': SURFACES.rule,
+        'control': SURFACES.control,
         'ink': SURFACES.ink,
         'muted': SURFACES.muted,
         'accent': SURFACES.accent,

@@ -25,6 +25,8 @@ export const SURFACES = {
   raised: '#fffdf8',
   sunk: '#efeadf',
   rule: '#ddd5c6',
+  /** Borders of inputs and buttons: at least 3:1 on paper (WCAG non-text contrast). */
+  control: '#8c8578',
   ink: '#1f2023',
   muted: '#555a61',
   accent: '#2c4a6e',

@@ -1,0 +1,109 @@
+import type { DrillDocument, SystemName, SystemOptions } from '#shared/drill/schema'
+
+/** One note of a chord with its target, as GET /api/drills/:id sends it (rests are left out). */
+export interface DrillTargetNote {
+  part: string
+  note: string
+  midi: number
+  member: string | null
+  targetHz: number
+  equalHz: number
+  centsFromEqual: number
+  ratio: string | null
+  writtenNote: string | null
+}
+
+export interface DrillTargetChord {
+  index: number
+  startBeat: number
+  beats: number
+  symbol: string | null
+  root: string | null
+  quality: string | null
+  centreCents: number
+  notes: DrillTargetNote[]
+}
+
+/** Targets of every note of a drill in one tuning system. */
+export interface DrillTargets {
+  system: SystemName
+  a4: number
+  /** How the system was set up, in words. */
+  description?: string
+  chords: DrillTargetChord[]
+  driftCents: number
+  warnings: { code: string, chord: number | null, message: string }[]
+}
+
+/** GET /api/drills/:id */
+export interface DrillView {
+  id: number
+  ensembleId: number
+  ensembleName: string
+  role: 'director' | 'section_leader' | 'player' | null
+  document: DrillDocument
+  /** Null when the drill's own system cannot be computed (then `targetsError` says why). */
+  targets: DrillTargets | null
+  targetsError?: { code: string, message: string } | null
+  preselectedPart: string | null
+}
+
+/** Human names of the tuning systems (ours; the maths is the trade's). */
+export const SYSTEM_LABELS: Record<SystemName, string> = {
+  'equal': 'Equal temperament',
+  'just-root': 'Just, from each chord root',
+  'just-tonic': 'Just, from the tonic',
+  'just-common': 'Just, common tones held',
+  'pythagorean': 'Pythagorean',
+  'meantone': 'Meantone',
+  'scala': 'Scala scale',
+}
+
+/** A short description of a system with the options that matter to it. */
+export function describeSystem(system: SystemOptions | SystemName | string | null | undefined): string {
+  if (!system) return 'Unknown system'
+  if (typeof system === 'string') return SYSTEM_LABELS[system as SystemName] ?? system
+  const base = SYSTEM_LABELS[system.name] ?? system.name
+  switch (system.name) {
+    case 'just-root':
+    case 'just-common':
+      return `${base} (${system.seventh === '5-limit' ? '5-limit sevenths' : 'harmonic sevenths'})`
+    case 'just-tonic':
+      return system.tonic ? `${base} ${system.tonic}` : base
+    case 'pythagorean':
+      return [base, system.start && `from ${system.start}`, system.wolf && `wolf above ${system.wolf}`].filter(Boolean).join(', ')
+    case 'meantone':
+      return `${String(system.fraction ?? '1/4').replace(/\s+/g, '')}-comma ${base.toLowerCase()}`
+    default:
+      return base
+  }
+}
+
+const ACCIDENTALS: Record<string, string> = { 'bb': '𝄫', 'b': '♭', '#': '♯', '##': '𝄪', 'x': '𝄪', '': '' }
+
+/** A note name with real accidentals for display: "Bb3" → "B♭3", "F#4" → "F♯4"; anything else unchanged. */
+export function prettyNote(name: string | null | undefined): string {
+  if (!name) return '—'
+  const m = /^([A-Ga-g])(bb|b|##|#|x)?(-?\d+)?$/.exec(name.trim())
+  if (!m) return name
+  return `${m[1]!.toUpperCase()}${ACCIDENTALS[m[2] ?? '']}${m[3] ?? ''}`
+}
+
+/** Seconds from the drill's start to each chord's start and end, from the tempo. */
+export function chordTimes(chord: { startBeat: number, beats: number }, tempo: number): { startS: number, endS: number } {
+  const spb = 60 / tempo
+  return { startS: chord.startBeat * spb, endS: (chord.startBeat + chord.beats) * spb }
+}
+
+/** The drill with its targets in the drill's own system; `assignmentId` lets the server preselect the assigned part. */
+export function useDrill(id: MaybeRefOrGetter<string | number>, opts: { immediate?: boolean, assignmentId?: MaybeRefOrGetter<string | number | null | undefined> } = {}) {
+  const query = computed(() => {
+    const a = toValue(opts.assignmentId)
+    return a ? { assignmentId: String(a) } : {}
+  })
+  return useFetch<DrillView>(() => `/api/drills/${encodeURIComponent(String(toValue(id)))}`, {
+    key: computed(() => `drill:${toValue(id)}:${query.value.assignmentId ?? ''}`),
+    query,
+    immediate: opts.immediate ?? true,
+  })
+}

@@ -1,0 +1,10 @@
+const AUTH_PAGES = ['/login', '/forgot-password', '/reset-password']
+
+/** A same-site path to return to after sign-in; anything else (other sites, sign-in pages) gives "/". */
+export function safeRedirect(value: unknown): string {
+  const v = Array.isArray(value) ? value[0] : value
+  if (typeof v !== 'string' || !v.startsWith('/') || v.startsWith('//') || v.startsWith('/\\')) return '/'
+  const path = v.split(/[?#]/)[0]!
+  if (AUTH_PAGES.includes(path)) return '/'
+  return v
+}

@@ -1,0 +1,243 @@
+// Alignment of a part's expected holds to a take's coarse pitch track.
+// Step 1 finds a global affine map t_take = offset + scale·t_drill (lead-in silence, late or
+// early start, a tempo up to 40 % slower or 60 % faster) by maximising how many frames inside
+// each mapped hold carry the expected pitch. Step 2 places every hold with a segmental dynamic
+// programme near that map: each hold gets a contiguous run of frames or is declared missing;
+// frames between holds (breaths, extra chords, noise) cost nothing; a duration prior splits
+// repeated notes that no pitch change separates; a weak position prior keeps repetitive drills
+// from sliding. Nothing here is ever guessed: a hold with no agreeing frames stays missing.
+import type { CoarseTrack } from './pitch'
+import type { ExpectedHold } from './types'
+
+export interface HoldPlacement {
+  /** Index into the expected (non-rest) holds given to alignHolds. */
+  hold: number
+  found: boolean
+  /** Frames [frameStart, frameEnd) when found. */
+  frameStart: number
+  frameEnd: number
+  /** Take time of the placed run, or of the mapped expectation when missing. */
+  startS: number
+  endS: number
+}
+
+export interface Alignment {
+  offsetS: number
+  timeScale: number
+  placements: HoldPlacement[]
+}
+
+export interface AlignOptions {
+  /** Range of the global tempo ratio take/drill searched (default 0.6–1.6). */
+  minScale?: number
+  maxScale?: number
+}
+
+// Frame costs relative to "between holds" (which costs 0); negative = evidence for the hold.
+const COST_MATCH = -1 // within 0.6 semitone of the expected note
+const COST_OCTAVE = -0.8 // within 0.6 semitone after an octave fold (detector or player octave error)
+const COST_NEAR = -0.3 // within 3.5 semitones: badly out of tune, still this hold
+const COST_FAR = 0.3 // a clearly different note
+const COST_UNVOICED = 0.4 // silence or breath inside a hold
+// Gains for the global map (what a mapped hold earns per frame).
+const GAIN_MATCH = 1
+const GAIN_OCTAVE = 0.8
+const GAIN_NEAR = 0.3
+const GAIN_FAR = -0.3
+const DURATION_WEIGHT = 0.3
+const POSITION_WEIGHT_PER_S = 5
+
+function frameClass (hz: number, voiced: number, expectedHz: number): 0 | 1 | 2 | 3 | 4 {
+  if (!voiced || !(hz > 0)) return 4
+  const d = 12 * Math.log2(hz / expectedHz)
+  if (Math.abs(d) <= 0.6) return 0
+  const oct = Math.round(d / 12)
+  if (Math.abs(oct) === 1 && Math.abs(d - 12 * oct) <= 0.6) return 1
+  if (Math.abs(d) <= 3.5) return 2
+  return 3
+}
+
+/**
+ * Places each expected (non-rest) hold in the take, or marks it missing. `tracks[i]` is the
+ * coarse track that covers hold i's note (tracks share their frame times).
+ */
+export function alignHolds (tracks: CoarseTrack[], holds: ExpectedHold[], opts: AlignOptions = {}): Alignment {
+  const N = holds.length
+  if (N === 0) return { offsetS: 0, timeScale: 1, placements: [] }
+  if (tracks.length !== N) throw new RangeError('alignHolds needs one coarse track per hold')
+  const F = Math.min(...tracks.map(t => t.times.length))
+  const hop = tracks[0]!.hopS
+  const takeDur = F * hop
+
+  // Prefix sums per distinct expected frequency: DP costs and global-map gains.
+  const keyOf = (hz: number) => hz.toFixed(6)
+  const costPrefix = new Map<string, Float64Array>()
+  const gainPrefix = new Map<string, Float64Array>()
+  const costTable = [COST_MATCH, COST_OCTAVE, COST_NEAR, COST_FAR, COST_UNVOICED]
+  const gainTable = [GAIN_MATCH, GAIN_OCTAVE, GAIN_NEAR, GAIN_FAR, 0]
+  holds.forEach((h, i) => {
+    const track = tracks[i]!
+    const key = keyOf(h.expectedHz)
+    if (costPrefix.has(key)) return
+    const cp = new Float64Array(F + 1)
+    const gp = new Float64Array(F + 1)
+    for (let j = 0; j < F; j++) {
+      const c = frameClass(track.hz[j]!, track.voiced[j]!, h.expectedHz)
+      cp[j + 1] = cp[j]! + costTable[c]!
+      gp[j + 1] = gp[j]! + gainTable[c]!
+    }
+    costPrefix.set(key, cp)
+    gainPrefix.set(key, gp)
+  })
+  const cost = holds.map(h => costPrefix.get(keyOf(h.expectedHz))!)
+  const gain = holds.map(h => gainPrefix.get(keyOf(h.expectedHz))!)
+  // Frame index whose centre is the first at or after time t (rounding; exact halves do not matter).
+  const invHop = 1 / hop
+  const fi = (t: number) => {
+    const v = Math.floor(t * invHop + 0.5)
+    return v < 0 ? 0 : v > F ? F : v
+  }
+
+  // ---- Step 1: global affine map by grid search, then a finer local search.
+  const t0 = holds[0]!.startS
+  const t1 = holds[N - 1]!.endS
+  const span = Math.max(1e-3, t1 - t0)
+  const minScale = opts.minScale ?? 0.6
+  const maxScale = opts.maxScale ?? 1.6
+  // Long drills: score a subset of holds in the coarse search.
+  const stride = Math.max(1, Math.ceil(N / 64))
+  // Each hold's interior (10 % trimmed at both ends), on the drill timeline.
+  const inA = Float64Array.from(holds, h => h.startS + 0.1 * (h.endS - h.startS))
+  const inB = Float64Array.from(holds, h => h.endS - 0.1 * (h.endS - h.startS))
+  const score = (o: number, s: number, step: number): number => {
+    let total = 0
+    for (let i = 0; i < N; i += step) {
+      const a = fi(o + s * inA[i]!)
+      const b = fi(o + s * inB[i]!)
+      if (b > a) { const g = gain[i]!; total += g[b]! - g[a]! }
+    }
+    // Ties (e.g. one long hold fits any tempo) go to the drill's own tempo.
+    return total - 0.02 * Math.abs(Math.log(s)) * (span / hop)
+  }
+  let best = { o: -t0, s: 1, v: -Infinity }
+  // Coarse grid: 2 % in scale, 0.1 s in offset (holds are long against both), then a fine pass.
+  const nScales = Math.max(2, Math.round(Math.log(maxScale / minScale) / Math.log(1.02)) + 1)
+  const oStepCoarse = Math.max(5 * hop, takeDur / 2000)
+  for (let k = 0; k < nScales; k++) {
+    const s = minScale * Math.pow(maxScale / minScale, k / (nScales - 1))
+    const lo = -s * t0 - 0.25 * s * span
+    const hi = takeDur - s * t0 - 0.25 * s * span
+    for (let o = lo; o <= hi; o += oStepCoarse) {
+      const v = score(o, s, stride)
+      if (v > best.v) best = { o, s, v }
+    }
+  }
+  {
+    let fine = { ...best, v: score(best.o, best.s, 1) }
+    const s0 = best.s
+    const o0 = best.o
+    for (let ds = -0.015; ds <= 0.015 + 1e-9; ds += 0.0015) {
+      const s = s0 * (1 + ds)
+      // Keep the middle of the drill fixed while the scale moves.
+      const oc = o0 + (s0 - s) * (t0 + span / 2)
+      for (let q = -1.5 * oStepCoarse; q <= 1.5 * oStepCoarse + 1e-9; q += hop) {
+        const v = score(oc + q, s, 1)
+        if (v > fine.v) fine = { o: oc + q, s, v }
+      }
+    }
+    best = fine
+  }
+  const offset = best.o
+  const scale = best.s
+
+  // ---- Step 2: segmental DP near the map, on blocks of `step` frames (≥ 30 ms): boundaries
+  // finer than that do not matter, since every hold's attack and release are trimmed by ≥ 80 ms.
+  const step = Math.max(1, Math.round(0.03 / hop))
+  const U = Math.floor(F / step)
+  const ub = 1 / (hop * step) // blocks per second
+  interface Band { lo: number, hi: number, g: Float64Array, choice: Int32Array, ghi: number }
+  const bands: Band[] = []
+  let prev = new Float64Array(U + 1)
+  let cur = new Float64Array(U + 1)
+  const mapped = holds.map(h => ({ a: (offset + scale * h.startS) * ub, b: (offset + scale * h.endS) * ub }))
+  for (let i = 0; i < N; i++) {
+    const m = mapped[i]!
+    const nExp = Math.max(1, m.b - m.a)
+    // Room to move: enough for one chord skipped or doubled, at least 2 s.
+    const slack = Math.max(2 * ub, 0.9 * nExp)
+    const aMin = Math.max(0, Math.floor(m.a - slack))
+    const aMax = Math.min(U, Math.ceil(m.a + slack))
+    const Lmin = Math.max(2, Math.round(Math.max(0.12 * ub, 0.25 * nExp)))
+    const Lmax = Math.max(Lmin, Math.round(1.6 * nExp + 0.5 * ub))
+    const lo = Math.min(U, aMin + Lmin)
+    const hi = Math.min(U, aMax + Lmax)
+    const bandLen = Math.max(0, hi - lo + 1)
+    const g = new Float64Array(bandLen)
+    const choice = new Int32Array(bandLen)
+    const cpf = cost[i]!
+    const cp = new Float64Array(U + 1)
+    for (let u = 0; u <= U; u++) cp[u] = cpf[u * step]!
+    const durPen = new Float64Array(Lmax + 1)
+    // Duration prior in frame units, so it weighs like the per-frame costs.
+    for (let L = Lmin; L <= Lmax; L++) { const lr = Math.log(L / nExp); durPen[L] = DURATION_WEIGHT * nExp * step * lr * lr }
+    const posW = POSITION_WEIGHT_PER_S / ub
+    for (let b = 0; b < lo; b++) cur[b] = prev[b]!
+    for (let b = lo; b <= hi; b++) {
+      // Carry (block b−1 lies between holds) or hold i missing.
+      let v = b > 0 ? cur[b - 1]! : 0
+      let ch = -1
+      if (prev[b]! <= v) { v = prev[b]!; ch = -2 }
+      const aLo = Math.max(aMin, b - Lmax)
+      const aHi = Math.min(aMax, b - Lmin)
+      const cpb = cp[b]!
+      for (let a = aLo; a <= aHi; a++) {
+        const c = prev[a]! + cpb - cp[a]! + durPen[b - a]! + posW * Math.abs(a - m.a)
+        if (c < v) { v = c; ch = a }
+      }
+      cur[b] = v
+      g[b - lo] = v
+      choice[b - lo] = ch
+    }
+    const ghi = bandLen > 0 ? cur[hi]! : Infinity
+    for (let b = hi + 1; b <= U; b++) cur[b] = Math.min(ghi, prev[b]!)
+    bands.push({ lo, hi, g, choice, ghi })
+    const t = prev
+    prev = cur
+    cur = t
+  }
+  // G_i(b) for any b, from the stored bands (G_-1 ≡ 0).
+  const G = (i: number, b: number): number => {
+    while (i >= 0) {
+      const band = bands[i]!
+      if (b >= band.lo && b <= band.hi) return band.g[b - band.lo]!
+      if (b > band.hi) return Math.min(band.ghi, G(i - 1, b))
+      i--
+    }
+    return 0
+  }
+  const placements: HoldPlacement[] = new Array(N)
+  let b = U
+  for (let i = N - 1; i >= 0; i--) {
+    const band = bands[i]!
+    let placed = false
+    while (true) {
+      if (b < band.lo) break // hold i missing here
+      if (b > band.hi) {
+        if (band.ghi <= G(i - 1, b)) { b = band.hi; continue }
+        break
+      }
+      const ch = band.choice[b - band.lo]!
+      if (ch === -2) break
+      if (ch === -1) { b--; continue }
+      placements[i] = { hold: i, found: true, frameStart: ch * step, frameEnd: b * step, startS: ch * step * hop, endS: b * step * hop }
+      b = ch
+      placed = true
+      break
+    }
+    if (!placed) {
+      const m = mapped[i]!
+      placements[i] = { hold: i, found: false, frameStart: -1, frameEnd: -1, startS: m.a / ub, endS: m.b / ub }
+    }
+  }
+  return { offsetS: offset, timeScale: scale, placements }
+}

@@ -1,0 +1,582 @@
+// measureTake: decoded audio + the part's expected holds → a Measurement (Hz, not cents from any
+// target). Coarse track and alignment find each hold; the harmonic-phase track measures it; the
+// steady-state statistics below turn the track into one centre per hold.
+//
+// Rules this module keeps (documented because a director acts on them):
+// - Octave guard: the coarse detector's octave is checked against the harmonics. A hold played
+//   or sung an octave off is "not found" (octave_high / octave_low), never a 1200 ¢ deviation.
+// - A steady centre more than 350 ¢ from the expected note is a wrong note: "not found"
+//   (wrong_note) with the distance in the reason, not a huge deviation.
+// - Steady part: the main plateau of the hold (within 100 ¢ of its median), attack trimmed by
+//   12 % of its length (0.12–0.3 s) and release by 6 % (0.08–0.2 s), then extended past any
+//   settling transient still visible (smoothed residual > max(4 ¢, 3 SD)), at most 0.4 s more.
+//   Needs 0.2 s; otherwise too_short.
+// - Centre: robust (Huber) regression of the cents track on a constant, a linear trend and, when
+//   vibrato is found, a sinusoid at its rate, over a whole number of vibrato cycles; the
+//   constant at the window centre is the hold centre (= mean log-frequency of the steady part).
+// - Clipping: more than 5 % of the sounding samples at full scale is an error ('clipped': the
+//   recording level was far too high); 0.1–5 % is a warning and lowers confidence slightly.
+import { AnalysisError } from './errors'
+import type { DecodedAudio } from './decode'
+import { Pyramid, median, quantile } from './dsp'
+import { alignHolds } from './align'
+import { coarseTrack, noteBands, octaveEvidence, refinePitch } from './pitch'
+import type { CoarseTrack, RefinedTrack } from './pitch'
+import { ENGINE_VERSION } from './types'
+import type { ExpectedHold, HoldReasonCode, MeasuredHold, Measurement, MeasurementWarning } from './types'
+
+export interface MeasureOptions {
+  /** Called with 0…1 as the work proceeds. */
+  onProgress?: (fraction: number) => void
+  /** Include a decimated f0 trace per hold (default true). */
+  trace?: boolean
+}
+
+/** Largest allowed distance of a steady centre from the expected note before it counts as a wrong note. */
+export const WRONG_NOTE_CENTS = 350
+const SILENT_PEAK = 1e-4 // −80 dBFS
+const CLIPPED_ERROR_SHARE = 0.05
+const CLIPPED_WARN_SHARE = 0.001
+const MIN_STEADY_S = 0.2
+const BIN_S = 0.005
+
+const log2c = (x: number) => 1200 * Math.log2(x)
+
+/** Measures every expected hold of a part in a decoded take. */
+export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts: MeasureOptions = {}): Measurement {
+  const progress = opts.onProgress ?? (() => {})
+  const sr = audio.sampleRate
+  const x = audio.samples
+  if (!x || x.length === 0) throw new AnalysisError('empty')
+  if (!(sr >= 1000) || !Number.isFinite(sr)) throw new AnalysisError('corrupt', { sampleRate: sr })
+  const notes = expected.filter(h => h.midi !== null && h.expectedHz > 0 && Number.isFinite(h.expectedHz))
+    .sort((a, b) => a.startS - b.startS)
+  if (notes.length === 0) {
+    throw new AnalysisError('no_holds', { reason: 'part_rests' }, 'This part rests throughout the drill: there is nothing to measure')
+  }
+  const durationS = x.length / sr
+  let peak = 0
+  let clipped = 0
+  for (let i = 0; i < x.length; i++) {
+    const v = Math.abs(x[i]!)
+    if (v > peak) peak = v
+    if (v >= 0.999) clipped++
+  }
+  if (!(peak > SILENT_PEAK)) throw new AnalysisError('silent', { peakDbfs: peak > 0 ? +(20 * Math.log10(peak)).toFixed(1) : null })
+  progress(0.02)
+
+  const pyr = new Pyramid(x, sr)
+  // One coarse track per band of expected notes (a part spanning two octaves gets two).
+  const bands = noteBands(notes.map(h => h.expectedHz))
+  const bandTracks = bands.map(b => coarseTrack(pyr, b))
+  const trackOf = notes.map(h => bandTracks[bands.findIndex(b => h.expectedHz >= b.minHz && h.expectedHz <= b.maxHz)]!)
+  progress(0.3)
+  let voicedFrames = 0
+  {
+    const F = Math.min(...bandTracks.map(t => t.voiced.length))
+    for (let j = 0; j < F; j++) if (bandTracks.some(t => t.voiced[j])) voicedFrames++
+  }
+  const track = bandTracks[0]!
+  if (voicedFrames === 0) throw new AnalysisError('silent', { peakDbfs: +(20 * Math.log10(peak)).toFixed(1), pitchedFrames: 0 })
+
+  const warnings: MeasurementWarning[] = []
+  const clippedShareOverall = audio.clippedShare ?? clipped / x.length
+  const soundingSamples = Math.max(1, voicedFrames * track.hopS * sr)
+  const clippedShare = Math.min(1, (clippedShareOverall * x.length) / soundingSamples)
+  if (clippedShare > CLIPPED_ERROR_SHARE) {
+    throw new AnalysisError('clipped', { clippedShare: +clippedShare.toFixed(4) })
+  }
+  const clipWarn = clippedShare > CLIPPED_WARN_SHARE
+  if (clipWarn) warnings.push({ code: 'clipping', message: `${(100 * clippedShare).toFixed(1)} % of the sounding samples are clipped; record a little quieter next time` })
+  if (peak < 0.01) warnings.push({ code: 'low_level', message: 'The recording is very quiet (peak below −40 dBFS); measurements may be less certain' })
+
+  const alignment = alignHolds(trackOf, notes)
+  progress(0.4)
+
+  const holds: MeasuredHold[] = []
+  const scale = alignment.timeScale
+  for (let i = 0; i < notes.length; i++) {
+    const h = notes[i]!
+    const p = alignment.placements[i]!
+    const expectedDur = scale * (h.endS - h.startS)
+    let m: MeasuredHold
+    if (!p.found) {
+      m = missing(h, p.startS, p.endS, trackOf[i]!, durationS)
+    } else {
+      m = measureHold(pyr, trackOf[i]!, h, p.startS, p.endS, expectedDur, clipWarn, opts.trace !== false)
+    }
+    holds.push(m)
+    progress(0.4 + 0.6 * (i + 1) / notes.length)
+  }
+  const notFound = holds.filter(hh => hh.detectedHz === null).length
+  if (notFound > 0) warnings.push({ code: 'holds_missing', message: `${notFound} of ${holds.length} holds could not be measured` })
+  return {
+    take: { durationS, sampleRate: sr, channels: audio.channels },
+    holds,
+    timeScale: round(scale, 5),
+    offsetS: round(alignment.offsetS, 3),
+    warnings,
+    engine: ENGINE_VERSION,
+  }
+}
+
+function round (v: number, d: number): number {
+  const f = Math.pow(10, d)
+  return Math.round(v * f) / f
+}
+
+function noteWord (h: ExpectedHold): string {
+  return `the expected note (${h.expectedHz.toFixed(2)} Hz)`
+}
+
+function notFound (h: ExpectedHold, startS: number, endS: number, code: HoldReasonCode, reason: string): MeasuredHold {
+  return {
+    index: h.index,
+    startS: round(Math.max(0, startS), 3),
+    endS: round(Math.max(0, endS), 3),
+    detectedHz: null,
+    spreadCents: null,
+    slopeCentsPerS: null,
+    confidence: 0,
+    vibrato: null,
+    reason,
+    reasonCode: code,
+    expectedHz: h.expectedHz,
+    steadyStartS: null,
+    steadyEndS: null,
+    centreErrorCents: null,
+  }
+}
+
+// A hold the alignment left empty: say what was there instead.
+function missing (h: ExpectedHold, startS: number, endS: number, track: CoarseTrack, durationS: number): MeasuredHold {
+  if (startS >= durationS - 0.1) return notFound(h, startS, endS, 'beyond_take', 'The take ends before this chord')
+  const a = Math.max(0, Math.floor(startS / track.hopS))
+  const b = Math.min(track.times.length, Math.ceil(endS / track.hopS))
+  const cents: number[] = []
+  for (let j = a; j < b; j++) if (track.voiced[j]) cents.push(log2c(track.hz[j]! / h.expectedHz))
+  if (cents.length >= Math.max(5, 0.3 * (b - a))) {
+    const c = median(cents)
+    const semis = Math.round(Math.abs(c) / 100)
+    if (Math.abs(Math.abs(c) - 1200) < 60) {
+      return notFound(h, startS, endS, c > 0 ? 'octave_high' : 'octave_low', `Heard an octave ${c > 0 ? 'above' : 'below'} ${noteWord(h)}`)
+    }
+    if (Math.abs(c) > WRONG_NOTE_CENTS) {
+      return notFound(h, startS, endS, 'wrong_note', `Heard a pitch about ${semis} semitone${semis === 1 ? '' : 's'} ${c > 0 ? 'above' : 'below'} ${noteWord(h)}`)
+    }
+  }
+  return notFound(h, startS, endS, 'no_pitch', `No steady pitch near ${noteWord(h)} where this chord should be`)
+}
+
+interface Binned {
+  t: Float64Array
+  c: Float64Array // cents from expected (NaN = no data)
+  h: Float64Array // harmonicity
+}
+
+// Averages the fine track into 5-ms bins (means of cents keep the telescoping property).
+function binTrack (tr: RefinedTrack, expectedHz: number, startS: number, endS: number): Binned {
+  const n = Math.max(0, Math.ceil((endS - startS) / BIN_S))
+  const sum = new Float64Array(n)
+  const cnt = new Float64Array(n)
+  const hs = new Float64Array(n)
+  const ok = (m: number) => Number.isFinite(tr.hz[m]!) && tr.harmonicity[m]! >= 0.5
+  let levelRef = 0
+  {
+    const lv: number[] = []
+    for (let m = 0; m < tr.hz.length; m++) if (ok(m)) lv.push(tr.level[m]!)
+    levelRef = quantile(lv, 0.75)
+  }
+  for (let m = 0; m < tr.hz.length; m++) {
+    if (!ok(m) || !(tr.level[m]! >= 0.05 * levelRef)) continue
+    const k = Math.floor((tr.times[m]! - startS) / BIN_S)
+    if (k < 0 || k >= n) continue
+    sum[k]! += log2c(tr.hz[m]! / expectedHz)
+    hs[k]! += tr.harmonicity[m]!
+    cnt[k]!++
+  }
+  const t = new Float64Array(n)
+  const c = new Float64Array(n)
+  const h = new Float64Array(n)
+  for (let k = 0; k < n; k++) {
+    t[k] = startS + (k + 0.5) * BIN_S
+    c[k] = cnt[k]! > 0 ? sum[k]! / cnt[k]! : NaN
+    h[k] = cnt[k]! > 0 ? hs[k]! / cnt[k]! : 0
+  }
+  return { t, c, h }
+}
+
+// Running mean over `w` bins ignoring NaN.
+function smooth (c: Float64Array, w: number): Float64Array {
+  const n = c.length
+  const out = new Float64Array(n)
+  const h = w >> 1
+  for (let i = 0; i < n; i++) {
+    let s = 0
+    let k = 0
+    for (let j = Math.max(0, i - h); j <= Math.min(n - 1, i + h); j++) if (Number.isFinite(c[j]!)) { s += c[j]!; k++ }
+    out[i] = k > 0 ? s / k : NaN
+  }
+  return out
+}
+
+interface Fit {
+  centre: number
+  slope: number
+  vib: { a: number, b: number, omega: number } | null
+  resid: Float64Array
+  tMid: number
+}
+
+// Solves a small symmetric system (Gaussian elimination with partial pivoting).
+function solve (A: number[][], y: number[]): number[] | null {
+  const n = y.length
+  const M = A.map((row, i) => [...row, y[i]!])
+  for (let c = 0; c < n; c++) {
+    let p = c
+    for (let r = c + 1; r < n; r++) if (Math.abs(M[r]![c]!) > Math.abs(M[p]![c]!)) p = r
+    if (Math.abs(M[p]![c]!) < 1e-12) return null
+    ;[M[c], M[p]] = [M[p]!, M[c]!]
+    for (let r = c + 1; r < n; r++) {
+      const f = M[r]![c]! / M[c]![c]!
+      for (let k = c; k <= n; k++) M[r]![k]! -= f * M[c]![k]!
+    }
+  }
+  const out = new Array<number>(n).fill(0)
+  for (let r = n - 1; r >= 0; r--) {
+    let s = M[r]![n]!
+    for (let k = r + 1; k < n; k++) s -= M[r]![k]! * out[k]!
+    out[r] = s / M[r]![r]!
+  }
+  return out
+}
+
+// Huber IRLS of c(t) on [1, t−tMid, cos ω(t−tMid), sin ω(t−tMid)] over bins lo..hi.
+function robustFit (b: Binned, lo: number, hi: number, omega: number | null): Fit | null {
+  let n = 0
+  for (let k = lo; k <= hi; k++) if (Number.isFinite(b.c[k]!)) n++
+  if (n < 8) return null
+  const tMid = (b.t[lo]! + b.t[hi]!) / 2
+  const p = omega ? 4 : 2
+  // Basis columns and data, packed once.
+  const X = new Float64Array(n * p)
+  const y = new Float64Array(n)
+  const kIdx = new Int32Array(n)
+  {
+    let q = 0
+    for (let k = lo; k <= hi; k++) {
+      if (!Number.isFinite(b.c[k]!)) continue
+      const d = b.t[k]! - tMid
+      X[q * p] = 1
+      X[q * p + 1] = d
+      if (omega) { X[q * p + 2] = Math.cos(omega * d); X[q * p + 3] = Math.sin(omega * d) }
+      y[q] = b.c[k]!
+      kIdx[q] = k
+      q++
+    }
+  }
+  const w = new Float64Array(n).fill(1)
+  const res = new Float64Array(n)
+  const absRes = new Float64Array(n)
+  let coef: number[] | null = null
+  let kH = Infinity
+  for (let iter = 0; iter < 6; iter++) {
+    const A = Array.from({ length: p }, () => new Array<number>(p).fill(0))
+    const rhs = new Array<number>(p).fill(0)
+    for (let q = 0; q < n; q++) {
+      const wq = w[q]!
+      const o = q * p
+      for (let i = 0; i < p; i++) {
+        const wi = wq * X[o + i]!
+        rhs[i]! += wi * y[q]!
+        for (let j = i; j < p; j++) A[i]![j]! += wi * X[o + j]!
+      }
+    }
+    for (let i = 0; i < p; i++) for (let j = 0; j < i; j++) A[i]![j] = A[j]![i]!
+    const sol = solve(A, rhs)
+    if (!sol) break
+    coef = sol
+    for (let q = 0; q < n; q++) {
+      let v = 0
+      for (let i = 0; i < p; i++) v += coef[i]! * X[q * p + i]!
+      res[q] = y[q]! - v
+      absRes[q] = Math.abs(res[q]!)
+    }
+    // Huber scale from the MAD of the first fits, then held (saves sorting every pass).
+    if (iter < 2) kH = 2 * Math.max(1.4826 * median(absRes), 0.05)
+    for (let q = 0; q < n; q++) w[q] = absRes[q]! <= kH ? 1 : kH / absRes[q]!
+  }
+  if (!coef) return null
+  const resid = new Float64Array(b.c.length).fill(NaN)
+  for (let q = 0; q < n; q++) resid[kIdx[q]!] = res[q]!
+  return { centre: coef[0]!, slope: coef[1]!, vib: omega ? { a: coef[2]!, b: coef[3]!, omega } : null, resid, tMid }
+}
+
+// Least-squares sinusoid amplitude of the residual at rates 3.5–9 Hz; the peak when it stands out.
+function findVibrato (b: Binned, fit: Fit, lo: number, hi: number): { rateHz: number, amp: number } | null {
+  let count = 0
+  for (let k = lo; k <= hi; k++) if (Number.isFinite(fit.resid[k]!)) count++
+  const T = b.t[hi]! - b.t[lo]!
+  if (count < 20 || T < 0.3) return null
+  // Bins are uniform: cos/sin by rotation, no trig per bin.
+  const ampAt = (nu: number): number => {
+    const om = 2 * Math.PI * nu
+    const dr = Math.cos(om * BIN_S)
+    const di = Math.sin(om * BIN_S)
+    let cr = Math.cos(om * (b.t[lo]! - fit.tMid))
+    let ci = Math.sin(om * (b.t[lo]! - fit.tMid))
+    let cc = 0; let ss = 0; let cs = 0; let yc = 0; let ys = 0
+    for (let k = lo; k <= hi; k++) {
+      const y = fit.resid[k]!
+      if (y === y) {
+        cc += cr * cr; ss += ci * ci; cs += cr * ci; yc += y * cr; ys += y * ci
+      }
+      const t = cr * dr - ci * di
+      ci = cr * di + ci * dr
+      cr = t
+    }
+    const det = cc * ss - cs * cs
+    if (!(det > 1e-9)) return 0
+    return Math.hypot((yc * ss - ys * cs) / det, (ys * cc - yc * cs) / det)
+  }
+  const rates: number[] = []
+  const amps: number[] = []
+  for (let nu = 3.5; nu <= 9.0001; nu += 0.1) { rates.push(nu); amps.push(ampAt(nu)) }
+  let best = 0
+  for (let i = 1; i < amps.length; i++) if (amps[i]! > amps[best]!) best = i
+  if (best === 0 || best === amps.length - 1) return null
+  const floor = median(amps)
+  if (!(amps[best]! >= 1.5) || !(amps[best]! > 3 * floor)) return null
+  // Finer look around the peak, then a parabola through the best three.
+  let rate = rates[best]!
+  let amp = amps[best]!
+  for (let nu = rates[best - 1]!; nu <= rates[best + 1]! + 1e-9; nu += 0.02) {
+    const a = ampAt(nu)
+    if (a > amp) { amp = a; rate = nu }
+  }
+  if (T * rate < 1.5) return null
+  const y0 = ampAt(rate - 0.02) ** 2
+  const y1 = amp ** 2
+  const y2 = ampAt(rate + 0.02) ** 2
+  const den = y0 - 2 * y1 + y2
+  const shift = den < 0 ? 0.5 * (y0 - y2) / den : 0
+  return { rateHz: rate + Math.max(-0.5, Math.min(0.5, shift)) * 0.02, amp }
+}
+
+// How much the analysis (Hann frame, span between compared frames, 5-ms bins) shrinks a
+// sinusoidal pitch modulation at rate ν; the extent is divided by it.
+function vibratoGain (nu: number, tr: RefinedTrack): number {
+  const sinc = (x: number) => (Math.abs(x) < 1e-9 ? 1 : Math.sin(Math.PI * x) / (Math.PI * x))
+  // Hann window of length T: transform ∝ sinc(νT)/(1 − (νT)²), normalised at 0.
+  const hannT = tr.frameS
+  const u = nu * hannT
+  const hann = Math.abs(1 - u * u) < 1e-6 ? 0.5 : sinc(u) / (1 - u * u)
+  return Math.abs(hann * sinc(nu * tr.spanS) * sinc(nu * BIN_S))
+}
+
+function measureHold (pyr: Pyramid, track: CoarseTrack, h: ExpectedHold, startS: number, endS: number,
+  expectedDur: number, clipWarn: boolean, withTrace: boolean): MeasuredHold {
+  // Octave the detector heard: majority over the run's voiced frames.
+  const a = Math.max(0, Math.floor(startS / track.hopS))
+  const b = Math.min(track.times.length, Math.ceil(endS / track.hopS))
+  const byOct = new Map<number, number[]>()
+  for (let j = a; j < b; j++) {
+    if (!track.voiced[j]) continue
+    const c = log2c(track.hz[j]! / h.expectedHz)
+    const oct = Math.max(-1, Math.min(1, Math.round(c / 1200)))
+    const rest = c - 1200 * oct
+    if (Math.abs(rest) > 600) continue
+    if (!byOct.has(oct)) byOct.set(oct, [])
+    byOct.get(oct)!.push(rest)
+  }
+  let oct = 0
+  let best = -1
+  for (const [o, list] of byOct) if (list.length > best) { best = list.length; oct = o }
+  const rests = byOct.get(oct) ?? []
+  if (process.env.DL_DEBUG) console.log('DBG oct', oct, [...byOct.entries()].map(([o, l]) => [o, l.length, median(l)]))
+  if (rests.length < 3) return notFound(h, startS, endS, 'no_pitch', `No steady pitch near ${noteWord(h)} where this chord should be`)
+  const guessCents = median(rests)
+  const guessHz = h.expectedHz * Math.pow(2, guessCents / 1200)
+
+  // Octave guard: when the detector heard another octave, or could not reach the one below,
+  // the harmonics decide.
+  if (oct !== 0 || track.reachHz > guessHz / 2 / 1.02) {
+    const ev = octaveEvidence(pyr, startS, endS, guessHz)
+    const harm = Math.max(ev.odd, ev.even)
+    if (ev.even > 30 * ev.noise && ev.odd < 4 * ev.noise) {
+      return notFound(h, startS, endS, 'octave_high', `Heard an octave above ${noteWord(h)}`)
+    }
+    if (ev.half > 6 * ev.noise && ev.half > 0.03 * harm) {
+      return notFound(h, startS, endS, 'octave_low', `Heard an octave below ${noteWord(h)}`)
+    }
+  }
+
+  const tr = refinePitch(pyr, startS, endS, guessHz)
+  const bins = binTrack(tr, h.expectedHz, startS, endS)
+  if (process.env.DL_DEBUG) console.log('DBG refine K', tr.harmonics, 'rate', tr.rate, 'n', tr.hz.length, 'finite', tr.hz.filter(Number.isFinite).length, 'harm', median(tr.harmonicity), 'bins', bins.c.filter(Number.isFinite).length, '/', bins.c.length, 'hp', Array.from(tr.harmonicPower).map(v => (10 * Math.log10(v)).toFixed(0)).join(' '))
+  const n = bins.c.length
+  // Main plateau: the longest run (gaps ≤ 60 ms) within 100 ¢ of the run's median.
+  const sm = smooth(bins.c, 11)
+  const ref = median(sm)
+  if (!Number.isFinite(ref)) return notFound(h, startS, endS, 'no_pitch', `No steady pitch near ${noteWord(h)} where this chord should be`)
+  let runLo = -1
+  let runHi = -1
+  {
+    let curLo = -1
+    let lastOk = -1
+    const maxGap = Math.round(0.06 / BIN_S)
+    for (let k = 0; k < n; k++) {
+      const ok = Number.isFinite(sm[k]!) && Number.isFinite(bins.c[k]!) && Math.abs(sm[k]! - ref) <= 100
+      if (!ok) continue
+      if (curLo < 0 || k - lastOk > maxGap) curLo = k
+      lastOk = k
+      if (runLo < 0 || lastOk - curLo > runHi - runLo) { runLo = curLo; runHi = lastOk }
+    }
+  }
+  if (runLo < 0) return notFound(h, startS, endS, 'no_pitch', `No steady pitch near ${noteWord(h)} where this chord should be`)
+  const plateauS = (runHi - runLo + 1) * BIN_S
+  const trimA = Math.min(0.3, Math.max(0.12, 0.12 * plateauS))
+  const trimR = Math.min(0.2, Math.max(0.08, 0.06 * plateauS))
+  let lo = runLo + Math.round(trimA / BIN_S)
+  let hi = runHi - Math.round(trimR / BIN_S)
+  const minBins = Math.round(MIN_STEADY_S / BIN_S)
+  if (hi - lo + 1 < minBins) {
+    // Short holds: keep the middle 0.2 s of the plateau if it has that much.
+    if (runHi - runLo + 1 >= minBins + 4) {
+      const mid = (runLo + runHi) >> 1
+      lo = mid - (minBins >> 1)
+      hi = lo + minBins - 1
+    } else {
+      return notFound(h, startS, endS, 'too_short', `Too little steady sound to measure (${plateauS.toFixed(2)} s)`)
+    }
+  }
+
+  // First fit, vibrato search, then trim any settling transient still visible at either end.
+  let fit = robustFit(bins, lo, hi, null)
+  if (!fit) return notFound(h, startS, endS, 'too_short', 'Too little steady sound to measure')
+  let vib = findVibrato(bins, fit, lo, hi)
+  if (vib) fit = robustFit(bins, lo, hi, 2 * Math.PI * vib.rateHz) ?? fit
+  {
+    const rs = smooth(fit.resid, 13)
+    const vals: number[] = []
+    for (let k = lo; k <= hi; k++) if (Number.isFinite(rs[k]!)) vals.push(rs[k]!)
+    const sd = Math.sqrt(vals.reduce((s, v) => s + v * v, 0) / Math.max(1, vals.length))
+    const thr = Math.max(4, 3 * sd)
+    const maxExtra = Math.round(0.4 / BIN_S)
+    let newLo = lo
+    while (newLo < lo + maxExtra && newLo < hi - minBins && !(Math.abs(rs[newLo]!) <= thr)) newLo++
+    let newHi = hi
+    while (newHi > hi - maxExtra && newHi > newLo + minBins && !(Math.abs(rs[newHi]!) <= thr)) newHi--
+    if (newLo !== lo || newHi !== hi) {
+      lo = newLo
+      hi = newHi
+      const f2 = robustFit(bins, lo, hi, null)
+      if (f2) {
+        fit = f2
+        vib = findVibrato(bins, fit, lo, hi)
+        if (vib) fit = robustFit(bins, lo, hi, 2 * Math.PI * vib.rateHz) ?? fit
+      }
+    }
+  }
+  // Over a whole number of vibrato cycles, centred in the window.
+  if (vib) {
+    const T = (hi - lo + 1) * BIN_S
+    const cycles = Math.floor(T * vib.rateHz)
+    if (cycles >= 1) {
+      const keep = Math.round(cycles / vib.rateHz / BIN_S)
+      const cut = (hi - lo + 1) - keep
+      lo += cut >> 1
+      hi = lo + keep - 1
+      fit = robustFit(bins, lo, hi, 2 * Math.PI * vib.rateHz) ?? fit
+    }
+  }
+
+  const centre = fit.centre
+  const steadyS = (hi - lo + 1) * BIN_S
+  if (Math.abs(centre) > WRONG_NOTE_CENTS) {
+    const semis = Math.round(Math.abs(centre) / 100)
+    return notFound(h, startS, endS, 'wrong_note', `Heard a pitch about ${semis} semitone${semis === 1 ? '' : 's'} ${centre > 0 ? 'above' : 'below'} ${noteWord(h)}`)
+  }
+
+  // Spread: SD of the 50-ms-smoothed residual with the vibrato removed (trend kept).
+  const vibOnly = new Float64Array(n).fill(NaN)
+  for (let k = lo; k <= hi; k++) {
+    if (!Number.isFinite(bins.c[k]!)) continue
+    let v = centre
+    if (fit.vib) {
+      const d = bins.t[k]! - fit.tMid
+      v += fit.vib.a * Math.cos(fit.vib.omega * d) + fit.vib.b * Math.sin(fit.vib.omega * d)
+    }
+    vibOnly[k] = bins.c[k]! - v
+  }
+  const vs = smooth(vibOnly, 11)
+  let s2 = 0
+  let ns = 0
+  for (let k = lo; k <= hi; k++) if (Number.isFinite(vs[k]!)) { s2 += vs[k]! * vs[k]!; ns++ }
+  const spread = ns > 0 ? Math.sqrt(s2 / ns) : 0
+  // Standard error of the centre from the means of four blocks of the full-model residual.
+  const blocks = 4
+  const bm: number[] = []
+  const per = Math.floor((hi - lo + 1) / blocks)
+  for (let q = 0; q < blocks; q++) {
+    let s = 0
+    let c = 0
+    for (let k = lo + q * per; k < lo + (q + 1) * per; k++) if (Number.isFinite(fit.resid[k]!)) { s += fit.resid[k]!; c++ }
+    if (c > 0) bm.push(s / c)
+  }
+  const se = bm.length >= 2 ? Math.sqrt(bm.reduce((s, v) => s + v * v, 0) / (bm.length * (bm.length - 1))) : 1
+  let hSum = 0
+  let hN = 0
+  for (let k = lo; k <= hi; k++) if (bins.h[k]! > 0) { hSum += bins.h[k]!; hN++ }
+  const harmonicity = hN > 0 ? hSum / hN : 0
+
+  let vibrato: MeasuredHold['vibrato'] = null
+  if (fit.vib) {
+    const rateHz = fit.vib.omega / (2 * Math.PI)
+    const g = Math.max(0.3, vibratoGain(rateHz, tr))
+    vibrato = { rateHz: round(rateHz, 2), extentCents: round(Math.hypot(fit.vib.a, fit.vib.b) / g, 1) }
+  }
+  const usable = Math.min(1, steadyS / Math.max(0.4, 0.5 * expectedDur))
+  const conf = usable *
+    Math.min(1, Math.max(0, (harmonicity - 0.5) / 0.4)) *
+    (1 / (1 + (spread / 15) ** 2)) *
+    (1 / (1 + se * se)) *
+    Math.min(1, steadyS / 0.4) *
+    (clipWarn ? 0.9 : 1)
+  const detectedHz = h.expectedHz * Math.pow(2, centre / 1200)
+  const steadyStartS = bins.t[lo]! - BIN_S / 2
+  const steadyEndS = bins.t[hi]! + BIN_S / 2
+  const out: MeasuredHold = {
+    index: h.index,
+    startS: round(startS, 3),
+    endS: round(endS, 3),
+    detectedHz: round(detectedHz, 5),
+    spreadCents: round(spread, 2),
+    slopeCentsPerS: round(fit.slope, 2),
+    confidence: round(Math.max(0, Math.min(1, conf)), 2),
+    vibrato,
+    reason: null,
+    reasonCode: null,
+    expectedHz: h.expectedHz,
+    steadyStartS: round(steadyStartS, 3),
+    steadyEndS: round(steadyEndS, 3),
+    centreErrorCents: round(se, 3),
+  }
+  if (withTrace) out.trace = makeTrace(bins, h.expectedHz)
+  return out
+}
+
+// 25-ms points of the binned track for charts.
+function makeTrace (b: Binned, expectedHz: number): Array<[number, number]> {
+  const out: Array<[number, number]> = []
+  const group = 5
+  for (let k = 0; k + group <= b.c.length; k += group) {
+    let s = 0
+    let c = 0
+    for (let q = k; q < k + group; q++) if (Number.isFinite(b.c[q]!)) { s += b.c[q]!; c++ }
+    if (c === 0) continue
+    const t = (b.t[k]! + b.t[k + group - 1]!) / 2
+    out.push([round(t, 3), round(expectedHz * Math.pow(2, s / c / 1200), 3)])
+  }
+  return out
+}

@@ -1,0 +1,70 @@
+// Shapes shared by the analysis modules. A Measurement holds only what was measured (Hz, times,
+// spread, vibrato): it does not depend on the tuning system, so a take can be re-scored against
+// any system or reference pitch without decoding it again.
+
+/** One held note the part is expected to play, on the drill's own timeline. */
+export interface ExpectedHold {
+  /** Chord index in the drill. */
+  index: number
+  /** Start and end on the drill timeline (seconds from the first beat). */
+  startS: number
+  endS: number
+  /** MIDI note, or null for a rest. */
+  midi: number | null
+  /** Where to look: the equal-tempered frequency of the note at the drill's reference pitch. */
+  expectedHz: number
+}
+
+/** Why a hold has no measured pitch (stable codes; `reason` carries the sentence). */
+export type HoldReasonCode =
+  | 'no_pitch' // nothing voiced near the expected note where the chord should be
+  | 'beyond_take' // the take ends before the chord
+  | 'octave_high' | 'octave_low' // sung/played an octave off the expected note
+  | 'wrong_note' // a steady pitch more than 350 ¢ from the expected note
+  | 'too_short' // too little steady sound to measure
+
+export interface MeasuredHold {
+  index: number
+  /** Where the hold was found in the take (or, when not found, where it was expected), seconds. */
+  startS: number
+  endS: number
+  /** Steady-state frequency (attack and release trimmed, vibrato averaged), or null when not found. */
+  detectedHz: number | null
+  /** SD of the steady pitch about its centre with vibrato removed (smoothed over 50 ms), cents. */
+  spreadCents: number | null
+  /** Linear trend of the pitch within the steady part, cents per second. */
+  slopeCentsPerS: number | null
+  /** 0–1: how much the number can be trusted (usable share, harmonicity, spread, precision, length). */
+  confidence: number
+  vibrato: { rateHz: number, extentCents: number } | null
+  reason: string | null
+  reasonCode: HoldReasonCode | null
+  /** The frequency the hold was searched near (equal temperament at the drill's A4). */
+  expectedHz: number
+  /** The stretch the centre was measured over. */
+  steadyStartS: number | null
+  steadyEndS: number | null
+  /** Standard error of the centre, cents (approximate: from block means of the residual). */
+  centreErrorCents: number | null
+  /** Decimated f0 track over the hold for charts: [seconds, Hz]. */
+  trace?: Array<[number, number]>
+}
+
+export interface MeasurementWarning {
+  code: 'clipping' | 'low_level' | 'holds_missing'
+  message: string
+}
+
+export interface Measurement {
+  take: { durationS: number, sampleRate: number, channels: number }
+  holds: MeasuredHold[]
+  /** Global map from the drill timeline to the take: t_take = offsetS + timeScale·t_drill. */
+  timeScale: number
+  offsetS: number
+  warnings: MeasurementWarning[]
+  /** Engine version, so stored measurements can be told apart after changes. */
+  engine: string
+}
+
+/** Version tag stored with every measurement. */
+export const ENGINE_VERSION = 'driftline-analysis-1'

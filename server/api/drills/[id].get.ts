@@ -1,0 +1,34 @@
+import { z } from 'zod'
+import { computeTargets } from '../../../shared/tuning/index'
+
+const Query = z.object({ assignmentId: z.coerce.number().int().positive().optional() })
+
+// GET /api/drills/:id → { id, ensembleId, ensembleName, role, document, targets, preselectedPart }
+export default defineEventHandler(async (event) => {
+  const user = await requireUser(event)
+  const { id } = validateParams(event, IdParams)
+  const { assignmentId } = validateQuery(event, Query)
+  const db = useDb()
+  const access = await findDrillForUser(db, user, id)
+  if (!access) throw apiError(404, 'not_found', 'Drill not found')
+  const { drill } = access
+  let targets = null
+  let targetsError = null
+  try {
+    targets = computeTargets(drill.document)
+  } catch (err) {
+    const e = err as { name?: string, code?: string, message?: string }
+    if (e?.name !== 'TuningError') throw err
+    targetsError = { code: e.code ?? 'invalid_system', message: e.message ?? 'Targets cannot be computed' }
+  }
+  return {
+    id: drill.id,
+    ensembleId: drill.ensembleId,
+    ensembleName: access.ensembleName,
+    role: access.membership.role,
+    document: drill.document,
+    targets,
+    targetsError,
+    preselectedPart: await preselectedPart(db, access, assignmentId),
+  }
+})

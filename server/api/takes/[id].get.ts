@@ -1,0 +1,10 @@
+// GET /api/takes/:id → status, progress, error, report and what the caller may do with the take.
+export default defineEventHandler(async (event) => {
+  const user = await requireUser(event)
+  const { id } = validateParams(event, IdParams)
+  const db = useDb()
+  const access = await findTakeForUser(db, user, id)
+  if (!access) throw apiError(404, 'not_found', 'Take not found')
+  setResponseHeader(event, 'Cache-Control', 'no-store')
+  return takeDetail(db, access)
+})

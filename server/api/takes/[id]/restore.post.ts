@@ -1,0 +1,9 @@
+// POST /api/takes/:id/restore → 200 { id, withdrawnAt: null } (directors only).
+export default defineEventHandler(async (event) => {
+  const user = await requireUser(event)
+  const { id } = validateParams(event, IdParams)
+  const db = useDb()
+  const access = await findTakeForUser(db, user, id)
+  if (!access) throw apiError(404, 'not_found', 'Take not found')
+  return restoreTake(db, user, access)
+})

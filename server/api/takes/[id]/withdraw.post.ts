@@ -1,0 +1,9 @@
+// POST /api/takes/:id/withdraw → 200 { id, withdrawnAt } (the player's own take; kept for the director).
+export default defineEventHandler(async (event) => {
+  const user = await requireUser(event)
+  const { id } = validateParams(event, IdParams)
+  const db = useDb()
+  const access = await findTakeForUser(db, user, id)
+  if (!access) throw apiError(404, 'not_found', 'Take not found')
+  return withdrawTake(db, user, access)
+})

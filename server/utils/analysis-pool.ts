@@ -1,0 +1,380 @@
+// The analysis pool: worker threads (runtimeConfig.analysis.workers) that take analysis jobs
+// from the database queue (server/utils/jobs.ts). The main thread claims a job, reads the take's
+// audio from the object store, hands the bytes to an idle worker, relays its progress to the
+// database (which doubles as the lock's heartbeat) and to live listeners, and writes the analysis,
+// its holds and the take's status in one transaction. Jobs survive a restart: at start every
+// lock left by the previous process goes back to the queue. Failures of the engine on the audio
+// itself (AnalysisError) fail the take with the engine's code and never retry; anything else
+// (a crashed worker, the store briefly down) retries with backoff. The upload is never deleted.
+import { EventEmitter } from 'node:events'
+import { existsSync } from 'node:fs'
+import { hostname } from 'node:os'
+import { dirname, join, resolve } from 'node:path'
+import { randomBytes } from 'node:crypto'
+import { Worker } from 'node:worker_threads'
+import type { Readable } from 'node:stream'
+import type { Knex } from 'knex'
+import { ANALYSE_TAKE_JOB, claimJob, completeJob, enqueueJob, failJob, requeueStaleJobs, setJobProgress, type Job } from './jobs'
+import { loadTakeForAnalysis, markTakeAnalysing, markTakeFailed, markTakeQueued, messageForCode, saveAnalysis, type TakeStatus } from './takes'
+import type { ObjectStore } from './storage'
+import type { WorkerJob, WorkerMessage } from '../analysis/worker'
+
+/** A take's live state, as the event stream sends it. */
+export interface TakeEvent {
+  takeId: number
+  status: TakeStatus
+  progress: number
+  error: { code: string, message: string } | null
+}
+
+const events = new EventEmitter()
+events.setMaxListeners(0)
+
+/** Listens to a take's status and progress; returns the function that stops listening. */
+export function onTakeEvent (takeId: number, listener: (e: TakeEvent) => void): () => void {
+  const name = `take:${takeId}`
+  events.on(name, listener)
+  return () => { events.off(name, listener) }
+}
+
+function emitTake (e: TakeEvent) {
+  events.emit(`take:${e.takeId}`, e)
+}
+
+export interface PoolOptions {
+  db: () => Knex
+  store: () => Promise<ObjectStore>
+  workers: number
+  workerFile: string
+  maxBytes?: number
+  maxDurationS?: number
+  /** A job running longer than this is stopped (its worker restarted) and retried. */
+  jobTimeoutMs?: number
+  /** How often the queue is looked at when nobody wakes the pool (backoffs, other processes). */
+  pollMs?: number
+}
+
+interface Running {
+  job: Job<{ takeId: number }>
+  takeId: number
+  progress: number
+  lastWrite: number
+  resolve: (m: WorkerMessage) => void
+}
+
+interface Slot {
+  index: number
+  lockId: string
+  worker: Worker | null
+  ready: Promise<void> | null
+  running: Running | null
+}
+
+const PROGRESS_WRITE_MS = 500
+const HEARTBEAT_MS = 15_000
+const STALE_LOCK_MS = 120_000
+
+/** Reads a whole object stream into one buffer. */
+async function readAll (body: Readable): Promise<Uint8Array> {
+  const chunks: Uint8Array[] = []
+  let n = 0
+  for await (const c of body) { chunks.push(c as Uint8Array); n += (c as Uint8Array).length }
+  // A buffer of its own (never a slice of Node's shared pool): it is transferred to the worker.
+  const out = new Uint8Array(n)
+  let at = 0
+  for (const c of chunks) { out.set(c, at); at += c.length }
+  return out
+}
+
+export class AnalysisPool {
+  private slots: Slot[] = []
+  private stopping = false
+  private started = false
+  private pumping = false
+  private again = false
+  private timer: ReturnType<typeof setInterval> | null = null
+  private heartbeat: ReturnType<typeof setInterval> | null = null
+  private readonly tag = `${hostname()}:${process.pid}:${randomBytes(3).toString('hex')}`
+
+  constructor (private readonly o: PoolOptions) {}
+
+  /** Requeues what the previous process left running, starts the workers, and begins taking jobs. */
+  async start (): Promise<void> {
+    if (this.started) return
+    this.started = true
+    const db = this.o.db()
+    // Whatever is still locked now was left by a process that stopped: this one holds no lock yet.
+    const { requeued, failed } = await requeueStaleJobs(db, { olderThanMs: 0 })
+    await this.reconcile(db)
+    if (requeued || failed) console.info(`[analysis] ${requeued} interrupted job(s) back in the queue, ${failed} given up`)
+    for (let i = 0; i < Math.max(1, this.o.workers); i++) {
+      const slot: Slot = { index: i, lockId: `${this.tag}:${i}`, worker: null, ready: null, running: null }
+      this.slots.push(slot)
+      this.spawn(slot)
+    }
+    this.timer = setInterval(() => this.wake(), this.o.pollMs ?? 1000)
+    this.timer.unref?.()
+    this.heartbeat = setInterval(() => { void this.beat() }, HEARTBEAT_MS)
+    this.heartbeat.unref?.()
+    console.info(`[analysis] ${this.slots.length} worker thread(s) from ${this.o.workerFile}`)
+    this.wake()
+  }
+
+  /** Stops taking jobs and ends the workers; running jobs are requeued at the next start. */
+  async stop (): Promise<void> {
+    this.stopping = true
+    if (this.timer) clearInterval(this.timer)
+    if (this.heartbeat) clearInterval(this.heartbeat)
+    await Promise.allSettled(this.slots.map(s => s.worker?.terminate()))
+    this.slots = []
+  }
+
+  /** Looks at the queue now (called after a job is added). */
+  wake (): void {
+    if (this.stopping || !this.started) return
+    if (this.pumping) { this.again = true; return }
+    this.pumping = true
+    void this.pump().finally(() => {
+      this.pumping = false
+      if (this.again) { this.again = false; this.wake() }
+    })
+  }
+
+  /** How many workers are busy, for health and benchmarks. */
+  stats (): { workers: number, busy: number } {
+    return { workers: this.slots.length, busy: this.slots.filter(s => s.running).length }
+  }
+
+  private spawn (slot: Slot) {
+    const worker = new Worker(this.o.workerFile, { name: `analysis-${slot.index}` })
+    slot.worker = worker
+    slot.ready = new Promise((ok) => {
+      const onMsg = (m: WorkerMessage) => { if (m?.type === 'ready') { worker.off('message', onMsg); ok() } }
+      worker.on('message', onMsg)
+      worker.once('exit', () => ok()) // a worker that never got ready: run() sees it gone
+    })
+    worker.on('message', (m: WorkerMessage) => this.onMessage(slot, m))
+    worker.on('error', (err) => {
+      console.error(`[analysis] worker ${slot.index} failed: ${err.message}`)
+    })
+    worker.on('exit', (code) => {
+      if (slot.worker !== worker) return
+      slot.worker = null
+      const r = slot.running
+      if (r) r.resolve({ type: 'error', jobId: r.job.id, analysis: false, code: 'worker_exit', message: `worker stopped (exit code ${code})` })
+      if (!this.stopping) {
+        // A worker that dies at once (a broken bundle) must not spin: wait a little before the next.
+        setTimeout(() => { if (!this.stopping) { this.spawn(slot); this.wake() } }, r ? 200 : 2000).unref?.()
+      }
+    })
+  }
+
+  private onMessage (slot: Slot, m: WorkerMessage) {
+    const r = slot.running
+    if (!r || m.type === 'ready' || m.jobId !== r.job.id) return
+    if (m.type === 'progress') {
+      r.progress = m.progress
+      emitTake({ takeId: r.takeId, status: 'analysing', progress: m.progress, error: null })
+      const now = Date.now()
+      if (now - r.lastWrite >= PROGRESS_WRITE_MS) {
+        r.lastWrite = now
+        setJobProgress(this.o.db(), r.job.id, slot.lockId, m.progress).catch(() => {})
+      }
+      return
+    }
+    r.resolve(m)
+  }
+
+  // Refreshes the locks of running jobs, so a long decode is never mistaken for a dead worker;
+  // also returns to the queue jobs whose worker vanished without a word (another process).
+  private async beat () {
+    const db = this.o.db()
+    for (const s of this.slots) {
+      if (s.running) await setJobProgress(db, s.running.job.id, s.lockId, s.running.progress).catch(() => {})
+    }
+    await requeueStaleJobs(db, { olderThanMs: STALE_LOCK_MS }).catch(() => {})
+  }
+
+  private async pump () {
+    while (!this.stopping) {
+      const slot = this.slots.find(s => !s.running && s.worker)
+      if (!slot) return
+      let job: Job<{ takeId: number }> | null
+      try {
+        job = await claimJob(this.o.db(), slot.lockId, { kinds: [ANALYSE_TAKE_JOB] })
+      } catch (err) {
+        console.error(`[analysis] could not read the queue: ${(err as Error).message}`)
+        return
+      }
+      if (!job) return
+      void this.run(slot, job)
+    }
+  }
+
+  private async run (slot: Slot, job: Job<{ takeId: number }>) {
+    const takeId = Number(job.payload?.takeId ?? job.takeId)
+    let settle!: (m: WorkerMessage) => void
+    const answer = new Promise<WorkerMessage>((ok) => { settle = ok })
+    const running: Running = { job, takeId, progress: 0, lastWrite: 0, resolve: m => settle(m) }
+    slot.running = running
+    const db = this.o.db()
+    try {
+      const loaded = await loadTakeForAnalysis(db, takeId)
+      if (!loaded) {
+        await completeJob(db, job.id, slot.lockId, { skipped: 'take_missing' })
+        return
+      }
+      const { take, drill } = loaded
+      if (!drill) {
+        await this.giveUp(slot, job, takeId, 'analysis_error', 'The drill of this take no longer exists')
+        return
+      }
+      await markTakeAnalysing(db, takeId, drill.version)
+      emitTake({ takeId, status: 'analysing', progress: 0, error: null })
+
+      const store = await this.o.store()
+      const obj = await store.get(take.objectKey)
+      if (!obj) {
+        await this.giveUp(slot, job, takeId, 'audio_missing')
+        return
+      }
+      const bytes = await readAll(obj.body)
+      await slot.ready
+      const worker = slot.worker
+      if (!worker) throw new Error('worker not running')
+      if (this.stopping) throw new Error('shutting down')
+      const doc = drill.document
+      const msg: WorkerJob = {
+        type: 'job', jobId: job.id, takeId, bytes, drill: doc, part: take.part,
+        system: doc.system, a4: doc.a4, tolerance: doc.tolerance,
+        maxBytes: this.o.maxBytes, maxDurationS: this.o.maxDurationS,
+      }
+      const timeout = setTimeout(() => {
+        settle({ type: 'error', jobId: job.id, analysis: false, code: 'timeout', message: 'analysis took too long' })
+        // Take the hung worker out of service at once, then start a fresh one.
+        if (slot.worker === worker) slot.worker = null
+        void worker.terminate().finally(() => { if (!this.stopping) { this.spawn(slot); this.wake() } })
+      }, this.o.jobTimeoutMs ?? 10 * 60_000)
+      worker.postMessage(msg, [bytes.buffer as ArrayBuffer])
+      const m = await answer
+      clearTimeout(timeout)
+
+      if (m.type === 'result') {
+        const saved = await db.transaction(async (trx) => {
+          const id = await saveAnalysis(trx, {
+            takeId, drillVersion: drill.version, system: doc.system, tolerance: doc.tolerance,
+            measurement: m.measurement, report: m.report as never, durationMs: m.ms,
+            engineVersion: (m.measurement as { engine?: string })?.engine ?? null,
+          })
+          // Lost the lock (this job was given to another worker meanwhile): keep nothing.
+          if (!await completeJob(trx, job.id, slot.lockId, { analysisId: id, ms: m.ms })) throw new LostLock()
+          return id
+        }).catch((err) => { if (err instanceof LostLock) return null; throw err })
+        if (saved != null) emitTake({ takeId, status: 'analysed', progress: 1, error: null })
+      } else if (m.type === 'error' && m.analysis) {
+        await this.giveUp(slot, job, takeId, m.code, m.message)
+      } else if (m.type === 'error') {
+        await this.retryLater(slot, job, takeId, `${m.code}: ${m.message}`)
+      }
+    } catch (err) {
+      if (this.stopping) return // the lock is left; the next start puts the job back in the queue
+      await this.retryLater(slot, job, takeId, (err as Error)?.message ?? String(err)).catch((e) => {
+        console.error(`[analysis] job ${job.id} could not be put back: ${(e as Error).message}`)
+      })
+    } finally {
+      slot.running = null
+      this.wake()
+    }
+  }
+
+  /** The audio cannot be scored: the take fails with the engine's code; no retry. */
+  private async giveUp (slot: Slot, job: Job, takeId: number, code: string, message?: string) {
+    const db = this.o.db()
+    const text = message ?? messageForCode(code)
+    const ok = await db.transaction(async (trx) => {
+      const r = await failJob(trx, job.id, slot.lockId, `${code}: ${text}`, { retry: false })
+      if (r === null) return false
+      await markTakeFailed(trx, takeId, code, text)
+      return true
+    })
+    if (ok) emitTake({ takeId, status: 'failed', progress: 0, error: { code, message: text } })
+  }
+
+  /** Something other than the audio went wrong: back in the queue after a backoff, failed at the last attempt. */
+  private async retryLater (slot: Slot, job: Job, takeId: number, reason: string) {
+    const db = this.o.db()
+    console.warn(`[analysis] take ${takeId} (job ${job.id}, attempt ${job.attempts}): ${reason}`)
+    const outcome = await db.transaction(async (trx) => {
+      const r = await failJob(trx, job.id, slot.lockId, reason.slice(0, 1000))
+      if (r === 'requeued') await markTakeQueued(trx, takeId)
+      if (r === 'failed') await markTakeFailed(trx, takeId, 'analysis_error')
+      return r
+    })
+    if (outcome === 'requeued') emitTake({ takeId, status: 'queued', progress: 0, error: null })
+    if (outcome === 'failed') emitTake({ takeId, status: 'failed', progress: 0, error: { code: 'analysis_error', message: messageForCode('analysis_error') } })
+  }
+
+  /**
+   * Brings take statuses in line with their jobs after a restart: a take whose job is queued is
+   * queued, one whose job was given up is failed, and one left without any job gets one.
+   */
+  private async reconcile (db: Knex) {
+    const open = await db('takes as t')
+      .whereIn('t.status', ['queued', 'analysing'])
+      .select('t.id', 't.status',
+        db.raw('(select j.status from jobs j where j.take_id = t.id order by j.id desc limit 1) as job_status'))
+    for (const t of open as { id: number, status: TakeStatus, job_status: string | null }[]) {
+      if (t.job_status === 'queued' && t.status !== 'queued') await markTakeQueued(db, t.id)
+      else if (t.job_status === 'failed') await markTakeFailed(db, t.id, 'analysis_interrupted')
+      else if (t.job_status == null || t.job_status === 'done') {
+        await db.transaction(async (trx) => {
+          await enqueueJob(trx, ANALYSE_TAKE_JOB, { takeId: t.id }, { takeId: t.id })
+          await markTakeQueued(trx, t.id)
+        })
+      }
+    }
+  }
+}
+
+class LostLock extends Error {}
+
+/**
+ * Where the worker bundle is: next to the server entry in a built app (.output/server), else the
+ * development build under .nuxt/. DRIFTLINE_ANALYSIS_WORKER overrides both.
+ */
+export function findWorkerFile (): string | null {
+  const candidates = [
+    process.env.DRIFTLINE_ANALYSIS_WORKER,
+    process.argv[1] ? join(dirname(resolve(process.argv[1])), 'analysis-worker.mjs') : undefined,
+    resolve('.output/server/analysis-worker.mjs'),
+  ].filter((p): p is string => Boolean(p))
+  return candidates.find(p => existsSync(p)) ?? null
+}
+
+let pool: AnalysisPool | null = null
+
+/** Starts the process's pool (once). */
+export async function startAnalysisPool (o: PoolOptions): Promise<AnalysisPool> {
+  if (!pool) {
+    pool = new AnalysisPool(o)
+    await pool.start()
+  }
+  return pool
+}
+
+/** Tells the pool a job was queued; harmless when no pool runs (it polls the queue anyway). */
+export function wakeAnalysisPool (): void {
+  pool?.wake()
+}
+
+/** Stops the pool (on shutdown). */
+export async function stopAnalysisPool (): Promise<void> {
+  const p = pool
+  pool = null
+  await p?.stop()
+}
+
+/** The running pool, or null. */
+export function analysisPool (): AnalysisPool | null {
+  return pool
+}

@@ -1,0 +1,304 @@
+// Multipart uploads streamed straight into object storage. formidable parses the request; its
+// `fileWriteStreamHandler` hands each chunk of the file to a writable that sniffs the format from
+// the first bytes, then pipes everything into an S3 multipart upload (lib-storage keeps at most a
+// few parts in memory). No temp file is written. An upload that is cut off, too large or not audio
+// aborts the object-store upload, so no object is left behind.
+import { randomUUID } from 'node:crypto'
+import { PassThrough, Writable } from 'node:stream'
+import type { IncomingMessage } from 'node:http'
+import type { H3Event } from 'h3'
+import formidable, { errors as formidableErrors } from 'formidable'
+import { detectFormat, type AudioFormat } from '../analysis/decode'
+import { apiError } from './errors'
+
+/** Bytes read before the format is decided (enough for any WAV/FLAC/Ogg/WebM header). */
+const SNIFF_BYTES = 256 * 1024
+/** An ID3 tag in front of MP3 audio may be large (cover art); sniffing reads past it, up to this. */
+const SNIFF_MAX_BYTES = 16 * 1024 * 1024
+/** Room for the multipart framing and text fields around the file. */
+const FORM_OVERHEAD_BYTES = 256 * 1024
+
+export const AUDIO_MIME: Readonly<Record<AudioFormat, string>> = {
+  'wav': 'audio/wav',
+  'flac': 'audio/flac',
+  'mp3': 'audio/mpeg',
+  'ogg-vorbis': 'audio/ogg',
+  'ogg-opus': 'audio/ogg; codecs=opus',
+  'webm-opus': 'audio/webm; codecs=opus',
+}
+
+export interface StoredUpload {
+  /** Opaque object key (random, never from the file name). */
+  key: string
+  bytes: number
+  format: AudioFormat
+  mime: string
+  /** The name the client gave, kept for display only. */
+  originalName: string | null
+}
+
+export interface UploadResult {
+  fields: Record<string, string>
+  file: StoredUpload | null
+  /** Deletes the stored object (when the request is refused after the upload finished). */
+  discard: () => Promise<void>
+}
+
+export interface UploadOptions {
+  /** Name of the one file field accepted. */
+  fileField: string
+  maxBytes: number
+  /** Prefix of the object key ("takes/"). */
+  keyPrefix: string
+  /** Largest total size of the text fields. */
+  maxFieldsBytes?: number
+}
+
+/** An object store as uploads need it (server/utils/storage.ts provides one). */
+export interface UploadStore {
+  put: (key: string, body: PassThrough, opts: { contentType?: string, abortSignal?: AbortSignal }) => Promise<unknown>
+  delete: (key: string) => Promise<void>
+}
+
+class UploadRefused extends Error {
+  constructor (readonly status: number, readonly code: string, message: string, readonly details: Record<string, unknown> = {}) {
+    super(message)
+  }
+}
+
+/** Sniffs the format of the first bytes; null while more bytes are needed to tell. */
+export function sniffAudio (head: Uint8Array, complete: boolean): AudioFormat | 'unknown' | null {
+  const format = detectFormat(head)
+  if (format) return format
+  if (complete) return 'unknown'
+  // An ID3v2 header says how long the tag is: read past it before deciding.
+  if (head.length >= 10 && head[0] === 0x49 && head[1] === 0x44 && head[2] === 0x33) {
+    const size = ((head[6]! & 0x7f) << 21) | ((head[7]! & 0x7f) << 14) | ((head[8]! & 0x7f) << 7) | (head[9]! & 0x7f)
+    const need = Math.min(SNIFF_MAX_BYTES, 10 + size + 10 + 64 * 1024)
+    return head.length < need ? null : 'unknown'
+  }
+  return head.length < SNIFF_BYTES ? null : 'unknown'
+}
+
+/**
+ * Parses a multipart request: text fields in memory, the one file streamed into the store under
+ * a random key. Throws h3 errors: 400 bad form, 413 too large, 415 not audio, 422 empty file.
+ */
+export async function receiveUpload (event: H3Event, store: UploadStore, opts: UploadOptions): Promise<UploadResult> {
+  const req = event.node.req as IncomingMessage
+  const type = String(req.headers['content-type'] ?? '').toLowerCase()
+  if (!type.startsWith('multipart/form-data')) {
+    throw apiError(415, 'not_multipart', 'Expected a multipart form', { expected: 'multipart/form-data' })
+  }
+  const length = Number.parseInt(String(req.headers['content-length'] ?? ''), 10)
+  if (Number.isFinite(length) && length > opts.maxBytes + FORM_OVERHEAD_BYTES) {
+    event.node.res.setHeader('Connection', 'close')
+    throw apiError(413, 'too_large', 'File too large', { maxBytes: opts.maxBytes })
+  }
+
+  let stored: StoredUpload | null = null
+  let pending: { done: Promise<void>, abort: (why: Error) => void, key: string } | null = null
+
+  const form = formidable({
+    maxFiles: 1,
+    maxFileSize: opts.maxBytes,
+    maxTotalFileSize: opts.maxBytes,
+    maxFields: 20,
+    maxFieldsSize: opts.maxFieldsBytes ?? 64 * 1024,
+    allowEmptyFiles: true,
+    minFileSize: 0,
+    fileWriteStreamHandler: (file?: formidable.VolatileFile) => {
+      const f = file as unknown as { fieldName?: string, originalFilename?: string | null }
+      if (f.fieldName !== opts.fileField) {
+        return refusingWritable(new UploadRefused(400, 'unexpected_file', 'Unexpected file field', { field: f.fieldName ?? null, expected: opts.fileField }))
+      }
+      const key = `${opts.keyPrefix}${randomUUID()}`
+      const sink = storeWritable(store, key, (format, bytes) => {
+        stored = { key, bytes, format, mime: AUDIO_MIME[format], originalName: cleanName(f.originalFilename) }
+      })
+      pending = { done: sink.done, abort: sink.abort, key }
+      return sink.writable
+    },
+  })
+  form.on('fileBegin', (name, file) => { (file as unknown as { fieldName: string }).fieldName = name })
+
+  let fields: Record<string, string>
+  try {
+    const [raw] = await form.parse(req)
+    // The store's upload settles only after formidable has seen the whole file.
+    if (pending) await (pending as { done: Promise<void> }).done
+    fields = {}
+    for (const [k, v] of Object.entries(raw)) if (v && v.length) fields[k] = String(v[v.length - 1])
+  } catch (err) {
+    const p = pending as { done: Promise<void>, abort: (why: Error) => void } | null
+    if (p) {
+      p.abort(err instanceof Error ? err : new Error(String(err)))
+      await p.done.catch(() => {})
+    }
+    throw toHttpError(event, err, opts)
+  }
+  const file = stored as StoredUpload | null
+  return {
+    fields,
+    file,
+    discard: async () => {
+      if (file) await store.delete(file.key).catch(err => console.warn(`[uploads] could not delete ${file.key}: ${(err as Error).message}`))
+    },
+  }
+}
+
+function cleanName (name: string | null | undefined): string | null {
+  if (!name) return null
+  // Display only: strip path parts and control characters, cap the length.
+  const base = String(name).split(/[\\/]/).pop() ?? ''
+  const clean = base.replace(/[\u0000-\u001f\u007f]/g, '').trim().slice(0, 255)
+  return clean || null
+}
+
+function refusingWritable (err: Error): Writable {
+  return new Writable({
+    write (_chunk, _enc, cb) { cb(err) },
+    final (cb) { cb(err) },
+  })
+}
+
+/**
+ * A writable that buffers the first bytes until the format is known, then streams into the
+ * store. `done` settles when the object is complete (or the upload is aborted).
+ */
+function storeWritable (store: UploadStore, key: string, onStored: (format: AudioFormat, bytes: number) => void) {
+  const controller = new AbortController()
+  let head: Buffer[] = []
+  let headBytes = 0
+  let total = 0
+  let body: PassThrough | null = null
+  let upload: Promise<unknown> | null = null
+  let settle!: (err?: Error) => void
+  const done = new Promise<void>((ok, fail) => {
+    settle = err => (err ? fail(err) : ok())
+  })
+  done.catch(() => {}) // observed by the caller
+  let format: AudioFormat | null = null
+
+  const decide = (complete: boolean): Error | null => {
+    const bytes = Buffer.concat(head, headBytes)
+    if (complete && headBytes === 0) return new UploadRefused(422, 'empty', 'The audio file is empty')
+    const sniffed = sniffAudio(bytes, complete)
+    if (sniffed === null) return null
+    if (sniffed === 'unknown') return new UploadRefused(415, 'not_audio', 'Not an audio file we read')
+    format = sniffed
+    body = new PassThrough({ highWaterMark: 1024 * 1024 })
+    upload = store.put(key, body, { contentType: AUDIO_MIME[sniffed], abortSignal: controller.signal })
+    upload.catch(() => {}) // awaited in final()
+    body.write(bytes)
+    head = []
+    return null
+  }
+
+  const writable = new Writable({
+    highWaterMark: 256 * 1024,
+    write (chunk: Buffer, _enc, cb) {
+      total += chunk.length
+      if (!body) {
+        head.push(chunk)
+        headBytes += chunk.length
+        const err = decide(false)
+        return cb(err ?? undefined)
+      }
+      if (body.write(chunk)) cb()
+      else body.once('drain', () => cb())
+    },
+    final (cb) {
+      const err = body ? null : decide(true)
+      if (err) { settle(err); return cb(err) }
+      body!.end()
+      upload!.then(() => {
+        onStored(format!, total)
+        settle()
+        cb()
+      }, (e: Error) => {
+        settle(e)
+        cb(e)
+      })
+    },
+    destroy (err, cb) {
+      // Cut off, refused or failed: stop the store's upload so no part or object stays behind.
+      const why = err ?? new Error('upload stopped')
+      if (!controller.signal.aborted) controller.abort(why)
+      body?.destroy()
+      if (upload) upload.then(() => settle(), () => settle(why))
+      else settle(why)
+      cb(err)
+    },
+  })
+  return {
+    writable,
+    done,
+    abort: (why: Error) => { if (!writable.destroyed) writable.destroy(why) },
+  }
+}
+
+function toHttpError (event: H3Event, err: unknown, opts: UploadOptions) {
+  if (err instanceof UploadRefused) return apiError(err.status, err.code, err.message, err.details)
+  const e = err as { code?: number, httpCode?: number, message?: string }
+  const fe = formidableErrors as Record<string, number>
+  if (e?.code === fe.biggerThanMaxFileSize || e?.code === fe.biggerThanTotalMaxFileSize) {
+    event.node.res.setHeader('Connection', 'close')
+    return apiError(413, 'too_large', 'File too large', { maxBytes: opts.maxBytes })
+  }
+  if (e?.code === fe.maxFieldsSizeExceeded || e?.code === fe.maxFieldsExceeded) {
+    return apiError(413, 'fields_too_large', 'Form fields too large')
+  }
+  if (e?.code === fe.maxFilesExceeded) return apiError(400, 'too_many_files', 'Only one file may be sent')
+  if (e?.code === fe.aborted) return apiError(400, 'upload_aborted', 'Upload cut off')
+  if (typeof e?.httpCode === 'number' && e.httpCode >= 400 && e.httpCode < 500) {
+    return apiError(400, 'bad_form', 'Malformed multipart form')
+  }
+  if (e?.message && /abort/i.test(e.message)) return apiError(400, 'upload_aborted', 'Upload cut off')
+  console.error(`[uploads] failed: ${e?.message ?? String(err)}`)
+  return apiError(500, 'upload_failed', 'Upload could not be stored')
+}
+
+/**
+ * Parses a small multipart form (a drill file): text fields and the one file, both in memory,
+ * capped at `maxBytes` (413). No temp file is written.
+ */
+export async function receiveSmallFile (event: H3Event, opts: { fileField: string, maxBytes: number }): Promise<{ fields: Record<string, string>, file: { bytes: Uint8Array, name: string | null } | null }> {
+  const req = event.node.req as IncomingMessage
+  const type = String(req.headers['content-type'] ?? '').toLowerCase()
+  if (!type.startsWith('multipart/form-data')) throw apiError(415, 'not_multipart', 'Expected a multipart form', { expected: 'multipart/form-data' })
+  const length = Number.parseInt(String(req.headers['content-length'] ?? ''), 10)
+  if (Number.isFinite(length) && length > opts.maxBytes + FORM_OVERHEAD_BYTES) {
+    event.node.res.setHeader('Connection', 'close')
+    throw apiError(413, 'too_large', 'File too large', { maxBytes: opts.maxBytes })
+  }
+  let file: { chunks: Buffer[], name: string | null } | null = null
+  const form = formidable({
+    maxFiles: 1,
+    maxFileSize: opts.maxBytes,
+    maxTotalFileSize: opts.maxBytes,
+    maxFields: 20,
+    maxFieldsSize: 64 * 1024,
+    allowEmptyFiles: true,
+    minFileSize: 0,
+    fileWriteStreamHandler: (f?: formidable.VolatileFile) => {
+      const v = f as unknown as { fieldName?: string, originalFilename?: string | null }
+      if (v.fieldName !== opts.fileField) {
+        return refusingWritable(new UploadRefused(400, 'unexpected_file', 'Unexpected file field', { field: v.fieldName ?? null, expected: opts.fileField }))
+      }
+      const mine = { chunks: [] as Buffer[], name: cleanName(v.originalFilename) }
+      file = mine
+      return new Writable({ write (chunk: Buffer, _e, cb) { mine.chunks.push(chunk); cb() } })
+    },
+  })
+  form.on('fileBegin', (name, f) => { (f as unknown as { fieldName: string }).fieldName = name })
+  try {
+    const [raw] = await form.parse(req)
+    const fields: Record<string, string> = {}
+    for (const [k, v] of Object.entries(raw)) if (v && v.length) fields[k] = String(v[v.length - 1])
+    const got = file as { chunks: Buffer[], name: string | null } | null
+    return { fields, file: got ? { bytes: new Uint8Array(Buffer.concat(got.chunks)), name: got.name } : null }
+  } catch (err) {
+    throw toHttpError(event, err, { fileField: opts.fileField, maxBytes: opts.maxBytes, keyPrefix: '' })
+  }
+}

@@ -1,0 +1,172 @@
+import { describe, expect, it, vi } from 'vitest'
+import { flushPromises } from '@vue/test-utils'
+import { mountSuspended, registerEndpoint } from '@nuxt/test-utils/runtime'
+import { createError, readMultipartFormData } from 'h3'
+import { computeTargets } from '#shared/tuning'
+
+// Invented demo data (the contract's shapes); the check values are the trade's, noted beside them.
+const ensembles = [
+  { id: 1, name: 'Harbour Singers', kind: 'choir', role: 'director', sectionCount: 4, memberCount: 24, archived: false },
+  { id: 2, name: 'Quay Brass', kind: 'band', role: 'player', sectionCount: 5, memberCount: 20, archived: false },
+  { id: 3, name: 'Old Choir', kind: 'choir', role: 'player', sectionCount: 2, memberCount: 8, archived: true },
+]
+const drillRow = {
+  id: 5, title: 'Held triads in E♭', key: 'Eb major', tempo: 60, a4: 440, system: { name: 'just-root', seventh: 'harmonic', fraction: '1/4' },
+  tolerance: 8, parts: [{ name: 'Soprano', instrument: 'voice-soprano' }, { name: 'Alto', instrument: null }], chords: 6, createdAt: '2026-03-01T10:00:00Z',
+}
+registerEndpoint('/api/ensembles', () => ensembles)
+registerEndpoint('/api/ensembles/1/drills', () => [drillRow])
+registerEndpoint('/api/ensembles/2/drills', () => [])
+
+let importCalls = 0
+registerEndpoint('/api/ensembles/1/drills/import', {
+  method: 'POST',
+  handler: async (event) => {
+    importCalls++
+    const parts = await readMultipartFormData(event)
+    const title = parts?.find(p => p.name === 'title')?.data.toString()
+    if (title === 'broken') {
+      throw createError({ statusCode: 400, statusMessage: 'Invalid drill file', data: { code: 'bad_note', message: '"H4" is not a note name', path: 'chords.2.notes.Alto' } })
+    }
+    return { id: 77, parts: ['Soprano', 'Alto'], chords: 3 }
+  },
+})
+
+async function chooseFile(w: Awaited<ReturnType<typeof mountSuspended>>, file: File) {
+  const input = w.find('input[type="file"]')
+  Object.defineProperty(input.element, 'files', { value: [file], configurable: true })
+  await input.trigger('change')
+}
+
+describe('pages/drills/index', () => {
+  it('lists the drills of each active ensemble and offers the import to directors only', async () => {
+    const { default: Page } = await import('~/pages/drills/index.vue')
+    const w = await mountSuspended(Page)
+    await flushPromises()
+    expect(w.text()).toContain('Harbour Singers')
+    expect(w.text()).toContain('Quay Brass')
+    expect(w.text()).not.toContain('Old Choir')
+    const link = w.find('a[href="/drills/5"]')
+    expect(link.text()).toBe('Held triads in E♭')
+    expect(w.text()).toContain('No drills in this ensemble yet')
+    const options = w.find('#import-ensemble').findAll('option').map(o => o.text())
+    expect(options).toEqual(['Harbour Singers'])
+  })
+
+  it('imports a drill file, and shows the server’s reason when the file is refused', async () => {
+    const { default: Page } = await import('~/pages/drills/index.vue')
+    const w = await mountSuspended(Page)
+    await flushPromises()
+    // Wrong kind of file: refused before sending.
+    await chooseFile(w, new File(['x'], 'notes.pdf', { type: 'application/pdf' }))
+    await w.find('form').trigger('submit')
+    await flushPromises()
+    expect(importCalls).toBe(0)
+    expect(w.text()).toContain('drill document (.json) or a Standard MIDI File')
+
+    await chooseFile(w, new File(['{"title":"x"}'], 'drill.json', { type: 'application/json' }))
+    await w.find('input[name="title"]').setValue('broken')
+    await w.find('form').trigger('submit')
+    await vi.waitFor(() => expect(w.text()).toContain('The drill was not imported'))
+    expect(w.text()).toContain('"H4" is not a note name (at chords.2.notes.Alto)')
+
+    await w.find('input[name="title"]').setValue('Good one')
+    await w.find('form').trigger('submit')
+    await vi.waitFor(() => expect(w.text()).toContain('Drill imported'))
+    expect(w.text()).toContain('3 chords, parts Soprano, Alto')
+    expect(w.find('a[href="/drills/77"]').exists()).toBe(true)
+    expect(importCalls).toBe(2)
+  })
+})
+
+// A take report for the Alto of a C major chord scored just from the root.
+const doc = {
+  title: 'One chord', key: 'C major', tempo: 60, a4: 440, system: { name: 'just-root', seventh: 'harmonic', fraction: '1/4' }, tolerance: 10,
+  parts: [{ name: 'Alto' }, { name: 'Bass' }], chords: [{ beats: 4, notes: { Alto: 'E4', Bass: 'C3' } }, { beats: 4, notes: { Alto: 'F4', Bass: 'F2' } }],
+}
+const report = {
+  take: { durationS: 9.5, sampleRate: 48000, channels: 1 },
+  system: 'just-root', a4: 440, part: 'Alto', tolerance: 10, description: 'Just intonation from each chord\'s root (seventh 7/4)',
+  holds: [
+    { index: 0, note: 'E4', member: 'third', startS: 0.6, endS: 4.4, targetHz: 327.032, detectedHz: 329.628, centsFromTarget: 13.686, centsFromEqual: 0, spreadCents: 1.9, slopeCentsPerS: -0.4, confidence: 0.95, withinTolerance: false, reason: null, writtenNote: 'E4' },
+    { index: 1, note: 'F4', member: 'third', startS: 4.6, endS: 8.4, targetHz: 343.323, detectedHz: null, centsFromTarget: null, centsFromEqual: null, spreadCents: null, slopeCentsPerS: null, confidence: 0, withinTolerance: null, reason: 'no voiced sound where the hold was expected', writtenNote: 'F4' },
+  ],
+  summary: { meanAbsCents: 13.686, withinToleranceShare: 0, driftCentsPerMin: null, holdsFound: 1, holdsExpected: 2 },
+  memberBias: { third: 13.686 },
+  warnings: [{ code: 'holds_missing', message: '1 of 2 holds were not found' }],
+}
+const takeDetail = (status: string, extra: Record<string, unknown> = {}) => ({
+  id: 9, status, progress: status === 'analysed' ? 1 : 0.4, error: null, report: status === 'analysed' ? report : null,
+  drill: { id: 3, title: 'One chord' }, part: 'Alto', player: { id: 4, name: 'Ada Example' }, assignmentId: null,
+  createdAt: '2026-03-10T18:00:00Z', withdrawnAt: null, canWithdraw: true, canRestore: false, canRescore: status === 'analysed', canReanalyse: status === 'analysed',
+  audioUrl: '/takes/9/audio', mime: 'audio/webm', earlier: [], ...extra,
+})
+registerEndpoint('/api/drills/3', () => ({ id: 3, ensembleId: 1, ensembleName: 'Harbour Singers', role: 'player', document: doc, targets: computeTargets(doc), targetsError: null, preselectedPart: 'Alto' }))
+let current = takeDetail('analysed')
+registerEndpoint('/api/takes/9', () => current)
+
+function mockBrowserOnly() {
+  vi.doMock('wavesurfer.js', () => ({ default: { create: () => ({ on: () => {}, destroy: () => {}, playPause: () => {} }) } }))
+  vi.doMock('wavesurfer.js/dist/plugins/regions.esm.js', () => ({ default: { create: () => ({ on: () => {}, addRegion: () => ({}), clearRegions: () => {}, getRegions: () => [] }) } }))
+  vi.doMock('vue-chartjs', () => ({ Line: { name: 'Line', render: () => null } }))
+}
+
+describe('pages/takes/[id]', () => {
+  it('shows the report of an analysed take: summary, holds, notes, history', async () => {
+    mockBrowserOnly()
+    current = takeDetail('analysed')
+    const { default: Page } = await import('~/pages/takes/[id].vue')
+    const w = await mountSuspended(Page, { route: '/takes/9' })
+    await flushPromises()
+    expect(w.text()).toContain('Alto · Ada Example')
+    expect(w.find('[data-status]').exists()).toBe(false) // no status panel once analysed
+    expect(w.find('[data-testid="summary-found"]').text()).toContain('1 of 2')
+    const table = w.find('[data-testid="hold-table"]')
+    expect(table.text()).toContain('+13.7 ¢')
+    expect(table.text()).toContain('no pitch found')
+    expect(table.text()).toContain('no voiced sound where the hold was expected')
+    expect(w.text()).toContain('1 of 2 holds were not found')
+    expect(w.text()).toContain('first take of this part')
+    expect(w.text()).toContain('Score again')
+    expect(w.text()).toContain('Withdraw this take')
+  })
+
+  it('shows the live status panel while the take is analysed', async () => {
+    mockBrowserOnly()
+    current = takeDetail('analysing')
+    vi.stubGlobal('EventSource', class { addEventListener() {} close() {} onerror = null })
+    const { default: Page } = await import('~/pages/takes/[id].vue')
+    const w = await mountSuspended(Page, { route: '/takes/9' })
+    await flushPromises()
+    const panel = w.find('[data-status="analysing"]')
+    expect(panel.text()).toContain('40 % done')
+    expect(w.find('[data-testid="hold-table"]').exists()).toBe(false)
+    vi.unstubAllGlobals()
+  })
+})
+
+registerEndpoint('/api/takes', (event) => {
+  const page = Number(new URL(event.node.req.url!, 'http://x').searchParams.get('page') || 1)
+  return {
+    items: [{ id: 40 + page, drillId: 5, drillTitle: 'Held triads in E♭', part: 'Alto', playerName: 'Ada Example', status: 'analysed', createdAt: '2026-03-10T18:00:00Z', meanAbsCents: 4.25, withinToleranceShare: 0.75, withdrawn: false }],
+    total: 45, page, pageSize: 20,
+  }
+})
+
+describe('pages/takes/index', () => {
+  it('lists takes with status and figures, and pages through them', async () => {
+    const { default: Page } = await import('~/pages/takes/index.vue')
+    const w = await mountSuspended(Page, { route: '/takes' })
+    await flushPromises()
+    const row = w.find('tbody tr')
+    expect(row.text()).toContain('Held triads in E♭')
+    expect(row.text()).toContain('Analysed')
+    expect(row.text()).toContain('4.3 ¢')
+    expect(row.text()).toContain('75 %')
+    // 45 takes at 20 a page: 3 pages.
+    expect(w.find('nav[aria-label="Pages of takes"]').text()).toContain('Page 1 of 3')
+    expect(w.find('a[rel="next"]').attributes('href')).toBe('/takes?page=2')
+    expect(w.find('a[rel="prev"]').exists()).toBe(false)
+    expect(w.find('caption').text()).toContain('45 takes')
+  })
+})
