@@ -7,6 +7,8 @@ export default defineNuxtConfig({
   devtools: { enabled: false },
   telemetry: false,
   modules: ['@pinia/nuxt', '@nuxtjs/tailwindcss', 'nuxt-auth-utils'],
+  // components/takes/TakeReport.vue is <TakeReport>: the file name already carries the domain.
+  components: [{ path: '~/components', pathPrefix: false }],
   css: ['@fontsource/lato/400.css', '@fontsource/lato/700.css', '@fontsource/lato/400-italic.css', '~/assets/css/main.css'],
   typescript: { strict: true },
   app: {

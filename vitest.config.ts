@@ -20,6 +20,8 @@ export default defineConfig({
           include: ['tests/nuxt/**/*.test.ts'],
           environment: 'nuxt',
           testTimeout: 30_000,
+          // Starting the Nuxt test app can take well over 10 s on a loaded 2-core machine.
+          hookTimeout: 120_000,
         },
       }),
       {

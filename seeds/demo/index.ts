@@ -6,7 +6,7 @@ import { randomUUID } from 'node:crypto'
 import type { Knex } from 'knex'
 import { computeTargets } from '../../shared/tuning/index'
 import { DrillDocument } from '../../shared/drill/schema'
-import { mulberry32, synthTake, type SynthTimbre } from '../../server/analysis/synth'
+import { mulberry32, synthTake, type SynthSpec, type SynthTimbre } from '../../server/analysis/synth'
 import { encodeWav } from '../../server/analysis/wav'
 import { saveDrill } from '../../server/utils/drills'
 import { ANALYSE_TAKE_JOB, enqueueJob } from '../../server/utils/jobs'
@@ -50,8 +50,14 @@ function timbreFor (instrument: string | undefined): SynthTimbre {
   return 'brass'
 }
 
-/** Synthesises one demo take: the part's notes of the drill at the targets, bent by the player's deviation. */
-export function synthDemoTake (take: DemoTake, seed: number, sampleRate = DEMO_SAMPLE_RATE): { wav: Uint8Array, durationS: number } {
+export interface DemoTakeSpec {
+  spec: SynthSpec
+  /** Per hold: the chord it belongs to, its chord member and target, and the deviation put in (cents). */
+  holds: { chord: number, member: string | null, targetHz: number, cents: number }[]
+}
+
+/** The synthesis spec of one demo take: the part's notes at their targets, bent by the player's deviation. */
+export function demoTakeSpec (take: DemoTake, seed: number, sampleRate = DEMO_SAMPLE_RATE): DemoTakeSpec {
   const drill = DRILLS.find(d => d.key === take.drill)!
   const doc = DrillDocument.parse(drill.document)
   const targets = computeTargets(doc)
@@ -59,7 +65,8 @@ export function synthDemoTake (take: DemoTake, seed: number, sampleRate = DEMO_S
   const rand = mulberry32(seed)
   const normal = () => Math.sqrt(-2 * Math.log(1 - rand())) * Math.cos(2 * Math.PI * rand())
   const dev = take.deviation
-  const holds = []
+  const holds: SynthSpec['holds'] = []
+  const truth: DemoTakeSpec['holds'] = []
   for (const chord of targets.chords) {
     const note = chord.notes.find(n => n.part === take.part)
     if (!note) continue // a rest for this part
@@ -69,23 +76,25 @@ export function synthDemoTake (take: DemoTake, seed: number, sampleRate = DEMO_S
     const memberBias = note.member && dev.members ? (dev.members as Record<string, number | undefined>)[note.member] ?? 0 : 0
     const cents = (dev.offsetCents ?? 0) + memberBias + (dev.driftCentsPerS ?? 0) * (startS - take.leadInS) + normal() * (dev.scatterCents ?? 0)
     holds.push({ startS, endS, hz: note.targetHz * 2 ** (cents / 1200), driftCentsPerS: dev.driftCentsPerS ?? 0 })
+    truth.push({ chord: chord.index, member: note.member, targetHz: note.targetHz, cents })
   }
   const totalBeats = doc.chords.reduce((s, c) => s + c.beats, 0)
   const durationS = Math.round((take.leadInS + totalBeats * spb + 0.8) * 100) / 100
   const instrument = doc.parts.find(p => p.name === take.part)?.instrument
-  const samples = synthTake({
-    sampleRate,
-    durationS,
-    holds,
-    timbre: timbreFor(instrument),
-    vibrato: dev.vibrato,
-    jitterCents: 1.5,
-    snrDb: 36,
-    seed,
-    breaths: true,
-  })
-  return { wav: encodeWav(samples, sampleRate), durationS }
+  return {
+    spec: { sampleRate, durationS, holds, timbre: timbreFor(instrument), vibrato: dev.vibrato, jitterCents: 1.5, snrDb: 36, seed, breaths: true },
+    holds: truth,
+  }
 }
+
+/** Synthesises one demo take as a mono 16-bit WAV. */
+export function synthDemoTake (take: DemoTake, seed: number, sampleRate = DEMO_SAMPLE_RATE): { wav: Uint8Array, durationS: number } {
+  const { spec } = demoTakeSpec(take, seed, sampleRate)
+  return { wav: encodeWav(synthTake(spec), sampleRate), durationS: spec.durationS }
+}
+
+/** Seed of the synthetic audio of TAKES[i]. */
+export const demoTakeSeed = (i: number) => 1000 + i * 17
 
 /** Writes the whole demo scenario; audio first, then every row in one transaction. */
 export async function seedDemo (db: Knex, deps: SeedDeps): Promise<SeedResult> {
@@ -99,7 +108,7 @@ export async function seedDemo (db: Knex, deps: SeedDeps): Promise<SeedResult> {
   try {
     let pending: Promise<void> = Promise.resolve()
     for (const [i, take] of TAKES.entries()) {
-      const { wav, durationS } = synthDemoTake(take, 1000 + i * 17)
+      const { wav, durationS } = synthDemoTake(take, demoTakeSeed(i))
       const key = `takes/${randomUUID()}`
       audio.push({ key, bytes: wav.byteLength, durationS })
       // Upload the previous take while the next one is synthesised.

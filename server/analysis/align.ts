@@ -38,13 +38,16 @@ const COST_MATCH = -1 // within 0.6 semitone of the expected note
 const COST_OCTAVE = -0.8 // within 0.6 semitone after an octave fold (detector or player octave error)
 const COST_NEAR = -0.3 // within 3.5 semitones: badly out of tune, still this hold
 const COST_FAR = 0.3 // a clearly different note
-const COST_UNVOICED = 0.4 // silence or breath inside a hold
+const COST_UNVOICED = 0.8 // silence or breath inside a hold (a breath between repeated notes splits them)
 // Gains for the global map (what a mapped hold earns per frame).
 const GAIN_MATCH = 1
 const GAIN_OCTAVE = 0.8
 const GAIN_NEAR = 0.3
 const GAIN_FAR = -0.3
-const DURATION_WEIGHT = 0.3
+// Duration prior: holds shorter than their chord are common (breaths, late entries), longer
+// ones are not, so shortness is charged less.
+const DURATION_WEIGHT_SHORT = 0.1
+const DURATION_WEIGHT_LONG = 0.3
 const POSITION_WEIGHT_PER_S = 5
 
 function frameClass (hz: number, voiced: number, expectedHz: number): 0 | 1 | 2 | 3 | 4 {
@@ -179,7 +182,10 @@ export function alignHolds (tracks: CoarseTrack[], holds: ExpectedHold[], opts: 
     for (let u = 0; u <= U; u++) cp[u] = cpf[u * step]!
     const durPen = new Float64Array(Lmax + 1)
     // Duration prior in frame units, so it weighs like the per-frame costs.
-    for (let L = Lmin; L <= Lmax; L++) { const lr = Math.log(L / nExp); durPen[L] = DURATION_WEIGHT * nExp * step * lr * lr }
+    for (let L = Lmin; L <= Lmax; L++) {
+      const lr = Math.log(L / nExp)
+      durPen[L] = (L < nExp ? DURATION_WEIGHT_SHORT : DURATION_WEIGHT_LONG) * nExp * step * lr * lr
+    }
     const posW = POSITION_WEIGHT_PER_S / ub
     for (let b = 0; b < lo; b++) cur[b] = prev[b]!
     for (let b = lo; b <= hi; b++) {

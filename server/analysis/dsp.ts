@@ -27,7 +27,7 @@ export function designHalfband (halfLength = 23, beta = 7.86): { h0: number, c: 
   const taps = (halfLength + 1) / 2
   const c = new Float64Array(taps)
   const i0b = besselI0(beta)
-  let sum = 0.5
+  let sum = 0
   for (let p = 0; p < taps; p++) {
     const n = 2 * p + 1
     const sinc = Math.sin(Math.PI * n / 2) / (Math.PI * n / 2)
@@ -36,8 +36,10 @@ export function designHalfband (halfLength = 23, beta = 7.86): { h0: number, c: 
     c[p] = 0.5 * sinc * w
     sum += 2 * c[p]!
   }
-  for (let p = 0; p < taps; p++) c[p]! /= sum
-  return { h0: 0.5 / sum, c }
+  // Scale the odd taps to sum to ½ with h(0) = ½: unit DC gain and an exact half-band
+  // (H(f) + H(½ − f) = 1).
+  for (let p = 0; p < taps; p++) c[p]! *= 0.5 / sum
+  return { h0: 0.5, c }
 }
 
 const HALFBAND = designHalfband()

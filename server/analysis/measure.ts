@@ -10,7 +10,8 @@
 // - Steady part: the main plateau of the hold (within 100 ¢ of its median), attack trimmed by
 //   12 % of its length (0.12–0.3 s) and release by 6 % (0.08–0.2 s), then extended past any
 //   settling transient still visible (smoothed residual > max(4 ¢, 3 SD)), at most 0.4 s more.
-//   Needs 0.2 s; otherwise too_short.
+//   Short holds get shorter trims (≥ 50 / 40 ms); 0.15 s of steady sound is the minimum,
+//   otherwise too_short.
 // - Centre: robust (Huber) regression of the cents track on a constant, a linear trend and, when
 //   vibrato is found, a sinusoid at its rate, over a whole number of vibrato cycles; the
 //   constant at the window centre is the hold centre (= mean log-frequency of the steady part).
@@ -37,7 +38,7 @@ export const WRONG_NOTE_CENTS = 350
 const SILENT_PEAK = 1e-4 // −80 dBFS
 const CLIPPED_ERROR_SHARE = 0.05
 const CLIPPED_WARN_SHARE = 0.001
-const MIN_STEADY_S = 0.2
+const MIN_STEADY_S = 0.15
 const BIN_S = 0.005
 
 const log2c = (x: number) => 1200 * Math.log2(x)
@@ -91,6 +92,13 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
   if (peak < 0.01) warnings.push({ code: 'low_level', message: 'The recording is very quiet (peak below −40 dBFS); measurements may be less certain' })
 
   const alignment = alignHolds(trackOf, notes)
+  if (process.env.DL_DEBUG) {
+    const tr = trackOf[0]!
+    let l = ''
+    for (let j = 0; j < tr.times.length; j++) l += `${tr.times[j]!.toFixed(2)}:${tr.voiced[j] ? tr.hz[j]!.toFixed(1) : '-'} `
+    console.log('DBG track', l)
+    console.log('DBG align', alignment.timeScale, alignment.offsetS, JSON.stringify(alignment.placements))
+  }
   progress(0.4)
 
   const holds: MeasuredHold[] = []
@@ -107,6 +115,11 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
     }
     holds.push(m)
     progress(0.4 + 0.6 * (i + 1) / notes.length)
+  }
+  // Nothing found and nothing that even resembles a note (no octave or wrong-note findings):
+  // the recording holds no measurable notes at all (noise, speech, another piece).
+  if (holds.every(hh => hh.detectedHz === null && (hh.reasonCode === 'no_pitch' || hh.reasonCode === 'beyond_take' || hh.reasonCode === 'too_short'))) {
+    throw new AnalysisError('no_holds', { reasons: holds.map(hh => hh.reasonCode) })
   }
   const notFound = holds.filter(hh => hh.detectedHz === null).length
   if (notFound > 0) warnings.push({ code: 'holds_missing', message: `${notFound} of ${holds.length} holds could not be measured` })
@@ -151,6 +164,7 @@ function notFound (h: ExpectedHold, startS: number, endS: number, code: HoldReas
 // A hold the alignment left empty: say what was there instead.
 function missing (h: ExpectedHold, startS: number, endS: number, track: CoarseTrack, durationS: number): MeasuredHold {
   if (startS >= durationS - 0.1) return notFound(h, startS, endS, 'beyond_take', 'The take ends before this chord')
+  const beyond = endS > durationS + 0.05
   const a = Math.max(0, Math.floor(startS / track.hopS))
   const b = Math.min(track.times.length, Math.ceil(endS / track.hopS))
   const cents: number[] = []
@@ -165,6 +179,7 @@ function missing (h: ExpectedHold, startS: number, endS: number, track: CoarseTr
       return notFound(h, startS, endS, 'wrong_note', `Heard a pitch about ${semis} semitone${semis === 1 ? '' : 's'} ${c > 0 ? 'above' : 'below'} ${noteWord(h)}`)
     }
   }
+  if (beyond) return notFound(h, startS, endS, 'beyond_take', 'The take ends during this chord')
   return notFound(h, startS, endS, 'no_pitch', `No steady pitch near ${noteWord(h)} where this chord should be`)
 }
 
@@ -398,20 +413,27 @@ function measureHold (pyr: Pyramid, track: CoarseTrack, h: ExpectedHold, startS:
   const guessCents = median(rests)
   const guessHz = h.expectedHz * Math.pow(2, guessCents / 1200)
 
-  // Octave guard: when the detector heard another octave, or could not reach the one below,
-  // the harmonics decide.
-  if (oct !== 0 || track.reachHz > guessHz / 2 / 1.02) {
-    const ev = octaveEvidence(pyr, startS, endS, guessHz)
-    const harm = Math.max(ev.odd, ev.even)
-    if (ev.even > 30 * ev.noise && ev.odd < 4 * ev.noise) {
-      return notFound(h, startS, endS, 'octave_high', `Heard an octave above ${noteWord(h)}`)
-    }
-    if (ev.half > 6 * ev.noise && ev.half > 0.03 * harm) {
-      return notFound(h, startS, endS, 'octave_low', `Heard an octave below ${noteWord(h)}`)
+  const tr = refinePitch(pyr, startS, endS, guessHz)
+  // Octave guard, on the refined pitch (the coarse one can be tens of cents off when the
+  // detector heard another octave): when the detector heard another octave, could not reach the
+  // one below, or the odd harmonics are missing, long-window harmonic evidence decides.
+  {
+    let odd = 0
+    let even = 0
+    for (let k = 0; k < tr.harmonics; k++) { if (k % 2 === 0) odd += tr.harmonicPower[k]!; else even += tr.harmonicPower[k]! }
+    const fRef = median(tr.hz)
+    const oddMissing = tr.harmonics >= 4 && odd < 0.01 * even
+    if (Number.isFinite(fRef) && (oct !== 0 || oddMissing || track.reachHz > fRef / 2 / 1.02)) {
+      const ev = octaveEvidence(pyr, startS, endS, fRef)
+      const harm = Math.max(ev.odd, ev.even)
+      if (ev.even > 30 * ev.noise && ev.odd < 4 * ev.noise) {
+        return notFound(h, startS, endS, 'octave_high', `Heard an octave above ${noteWord(h)}`)
+      }
+      if (ev.half > 6 * ev.noise && ev.half > 0.03 * harm) {
+        return notFound(h, startS, endS, 'octave_low', `Heard an octave below ${noteWord(h)}`)
+      }
     }
   }
-
-  const tr = refinePitch(pyr, startS, endS, guessHz)
   const bins = binTrack(tr, h.expectedHz, startS, endS)
   if (process.env.DL_DEBUG) console.log('DBG refine K', tr.harmonics, 'rate', tr.rate, 'n', tr.hz.length, 'finite', tr.hz.filter(Number.isFinite).length, 'harm', median(tr.harmonicity), 'bins', bins.c.filter(Number.isFinite).length, '/', bins.c.length, 'hp', Array.from(tr.harmonicPower).map(v => (10 * Math.log10(v)).toFixed(0)).join(' '))
   const n = bins.c.length
@@ -435,20 +457,20 @@ function measureHold (pyr: Pyramid, track: CoarseTrack, h: ExpectedHold, startS:
   }
   if (runLo < 0) return notFound(h, startS, endS, 'no_pitch', `No steady pitch near ${noteWord(h)} where this chord should be`)
   const plateauS = (runHi - runLo + 1) * BIN_S
-  const trimA = Math.min(0.3, Math.max(0.12, 0.12 * plateauS))
-  const trimR = Math.min(0.2, Math.max(0.08, 0.06 * plateauS))
+  let trimA = Math.min(0.3, Math.max(0.12, 0.12 * plateauS))
+  let trimR = Math.min(0.2, Math.max(0.08, 0.06 * plateauS))
+  // Short holds: shrink both trims (to no less than 50 and 40 ms) so that MIN_STEADY_S remains.
+  if (plateauS - trimA - trimR < MIN_STEADY_S) {
+    const room = Math.max(0, plateauS - MIN_STEADY_S)
+    const f = room / (trimA + trimR)
+    trimA = Math.max(0.05, trimA * f)
+    trimR = Math.max(0.04, trimR * f)
+  }
   let lo = runLo + Math.round(trimA / BIN_S)
   let hi = runHi - Math.round(trimR / BIN_S)
   const minBins = Math.round(MIN_STEADY_S / BIN_S)
   if (hi - lo + 1 < minBins) {
-    // Short holds: keep the middle 0.2 s of the plateau if it has that much.
-    if (runHi - runLo + 1 >= minBins + 4) {
-      const mid = (runLo + runHi) >> 1
-      lo = mid - (minBins >> 1)
-      hi = lo + minBins - 1
-    } else {
-      return notFound(h, startS, endS, 'too_short', `Too little steady sound to measure (${plateauS.toFixed(2)} s)`)
-    }
+    return notFound(h, startS, endS, 'too_short', `Too little steady sound to measure (${plateauS.toFixed(2)} s)`)
   }
 
   // First fit, vibrato search, then trim any settling transient still visible at either end.

@@ -41,7 +41,8 @@ export interface SynthSpec {
 export interface SynthHoldTruth {
   startS: number
   endS: number
-  /** Window over which the truth is defined: onset + 0.3 s to release start − 0.05 s. */
+  /** Window over which the truth is defined: onset + 0.3 s to release start − 0.05 s, shortened
+   *  equally at both ends to a whole number of vibrato cycles when there is vibrato. */
   steadyStartS: number
   steadyEndS: number
   /** Truth of the hold centre: exp of the mean synthesised log-frequency over the steady window. */
@@ -182,8 +183,18 @@ export function synthTakeWithTruth (spec: SynthSpec): SynthResult {
       return c
     }
 
-    const steadyStart = hold.startS + SYNTH_STEADY_AFTER_ONSET_S
-    const steadyEnd = hold.endS - releaseS - 0.05
+    let steadyStart = hold.startS + SYNTH_STEADY_AFTER_ONSET_S
+    let steadyEnd = hold.endS - releaseS - 0.05
+    if (vib && vib.rateHz > 0 && vib.extentCents > 0) {
+      // With vibrato the window is shortened (equally at both ends) to whole vibrato cycles, so
+      // the truth is not moved by a part-cycle.
+      const cycles = Math.floor((steadyEnd - steadyStart) * vib.rateHz)
+      if (cycles >= 1) {
+        const cut = (steadyEnd - steadyStart) - cycles / vib.rateHz
+        steadyStart += cut / 2
+        steadyEnd -= cut / 2
+      }
+    }
     // Contour at control points; the truth is the mean of the per-sample (linearly
     // interpolated) contour over the steady window.
     const nCtrl = Math.ceil(len / CTRL) + 1

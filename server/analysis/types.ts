@@ -18,7 +18,7 @@ export interface ExpectedHold {
 /** Why a hold has no measured pitch (stable codes; `reason` carries the sentence). */
 export type HoldReasonCode =
   | 'no_pitch' // nothing voiced near the expected note where the chord should be
-  | 'beyond_take' // the take ends before the chord
+  | 'beyond_take' // the take ends before or during the chord, and nothing was found
   | 'octave_high' | 'octave_low' // sung/played an octave off the expected note
   | 'wrong_note' // a steady pitch more than 350 ¢ from the expected note
   | 'too_short' // too little steady sound to measure

@@ -34,8 +34,10 @@ if (!port) throw new Error('analysis worker must run in a worker thread')
 
 // On Linux a thread has its own nice value: analysis yields the CPU to the HTTP thread, so
 // pages stay quick while uploads are measured. Elsewhere this call would renice the whole process.
-if (process.platform === 'linux') {
-  try { setPriority(0, 10) } catch { /* not allowed here: run at normal priority */ }
+// DRIFTLINE_ANALYSIS_NICE (0–19, default 10) sets it; 0 leaves the thread at normal priority.
+const NICE = Math.min(19, Math.max(0, Math.round(Number(process.env.DRIFTLINE_ANALYSIS_NICE ?? 10)) || 0))
+if (process.platform === 'linux' && NICE > 0) {
+  try { setPriority(0, NICE) } catch { /* not allowed here: run at normal priority */ }
 }
 
 port.on('message', (msg: WorkerJob) => {

@@ -14,6 +14,8 @@ export interface MailCatcher {
 
 export interface CaughtMailSummary { id: string, to: string, subject: string, date: string }
 export interface CaughtMail extends CaughtMailSummary { from: string, text: string, html: string | null }
+/** A message with its recipients' bare addresses (lower-case), for deciding who may read it. */
+export type WithRecipients<T> = T & { recipients: string[] }
 
 const MAX_MESSAGE_BYTES = 10 * 1024 * 1024
 /** Message ids are the file names we wrote: time, then random hex. */
@@ -73,8 +75,22 @@ const addressText = (a: unknown): string => {
   return list.map((x: { text?: string }) => x.text ?? '').filter(Boolean).join(', ')
 }
 
+interface AddressNode { address?: string, group?: AddressNode[] }
+const recipientsOf = (...fields: unknown[]): string[] => {
+  const out: string[] = []
+  const walk = (n: AddressNode) => {
+    if (n.address) out.push(n.address.toLowerCase())
+    n.group?.forEach(walk)
+  }
+  for (const f of fields) {
+    if (!f) continue
+    for (const a of (Array.isArray(f) ? f : [f]) as { value?: AddressNode[] }[]) a.value?.forEach(walk)
+  }
+  return [...new Set(out)]
+}
+
 /** Newest first, at most `limit` messages. */
-export async function listCaughtMail (dir: string, limit = 200): Promise<CaughtMailSummary[]> {
+export async function listCaughtMail (dir: string, limit = 200): Promise<WithRecipients<CaughtMailSummary>[]> {
   let files: string[]
   try {
     files = await readdir(resolve(dir))
@@ -83,11 +99,11 @@ export async function listCaughtMail (dir: string, limit = 200): Promise<CaughtM
   }
   const ids = files.filter(f => f.endsWith('.eml')).map(f => f.slice(0, -4)).filter(id => ID_PATTERN.test(id))
   ids.sort().reverse()
-  const out: CaughtMailSummary[] = []
+  const out: WithRecipients<CaughtMailSummary>[] = []
   for (const id of ids.slice(0, limit)) {
     try {
       const m = await parseFile(resolve(dir), id)
-      out.push({ id, to: addressText(m.to), subject: m.subject ?? '', date: (m.date ?? new Date(Number(id.slice(0, 13)))).toISOString() })
+      out.push({ id, to: addressText(m.to), subject: m.subject ?? '', date: (m.date ?? new Date(Number(id.slice(0, 13)))).toISOString(), recipients: recipientsOf(m.to, m.cc, m.bcc) })
     } catch {
       // A message we cannot parse is skipped, not fatal for the list.
     }
@@ -96,7 +112,7 @@ export async function listCaughtMail (dir: string, limit = 200): Promise<CaughtM
 }
 
 /** One message, or null when the id is unknown or malformed. */
-export async function readCaughtMail (dir: string, id: string): Promise<CaughtMail | null> {
+export async function readCaughtMail (dir: string, id: string): Promise<WithRecipients<CaughtMail> | null> {
   if (!ID_PATTERN.test(id)) return null
   try {
     const m = await parseFile(resolve(dir), id)
@@ -108,6 +124,7 @@ export async function readCaughtMail (dir: string, id: string): Promise<CaughtMa
       date: (m.date ?? new Date(Number(id.slice(0, 13)))).toISOString(),
       text: m.text ?? '',
       html: typeof m.html === 'string' ? m.html : null,
+      recipients: recipientsOf(m.to, m.cc, m.bcc),
     }
   } catch (err) {
     if ((err as NodeJS.ErrnoException).code === 'ENOENT') return null

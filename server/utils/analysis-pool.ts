@@ -154,7 +154,7 @@ export class AnalysisPool {
       worker.once('exit', () => ok()) // a worker that never got ready: run() sees it gone
     })
     worker.on('message', (m: WorkerMessage) => this.onMessage(slot, m))
-    worker.on('error', (err) => {
+    worker.on('error', (err: Error) => {
       console.error(`[analysis] worker ${slot.index} failed: ${err.message}`)
     })
     worker.on('exit', (code) => {
@@ -218,6 +218,8 @@ export class AnalysisPool {
     const running: Running = { job, takeId, progress: 0, lastWrite: 0, resolve: m => settle(m) }
     slot.running = running
     const db = this.o.db()
+    const claimedAt = new Date()
+    const t0 = performance.now()
     try {
       const loaded = await loadTakeForAnalysis(db, takeId)
       if (!loaded) {
@@ -239,6 +241,7 @@ export class AnalysisPool {
         return
       }
       const bytes = await readAll(obj.body)
+      const fetchMs = performance.now() - t0
       await slot.ready
       const worker = slot.worker
       if (!worker) throw new Error('worker not running')
@@ -267,7 +270,9 @@ export class AnalysisPool {
             engineVersion: (m.measurement as { engine?: string })?.engine ?? null,
           })
           // Lost the lock (this job was given to another worker meanwhile): keep nothing.
-          if (!await completeJob(trx, job.id, slot.lockId, { analysisId: id, ms: m.ms })) throw new LostLock()
+          // Where the time went, for the benchmark and for anyone reading the queue.
+          const timing = { claimedAt: claimedAt.toISOString(), fetchMs: Math.round(fetchMs), analyseMs: m.ms, totalMs: Math.round(performance.now() - t0) }
+          if (!await completeJob(trx, job.id, slot.lockId, { analysisId: id, ...timing })) throw new LostLock()
           return id
         }).catch((err) => { if (err instanceof LostLock) return null; throw err })
         if (saved != null) emitTake({ takeId, status: 'analysed', progress: 1, error: null })

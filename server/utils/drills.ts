@@ -1,5 +1,5 @@
 import type { Knex } from 'knex'
-import { Note } from '@tonaljs/tonal'
+import { noteToMidi } from '../../shared/tuning/pitch'
 import { DrillDocument, type DrillInput } from '../../shared/drill/schema'
 
 /** A note name in a drill that names no pitch ("H4", "Bb" without octave). */
@@ -22,8 +22,12 @@ export interface StoredDrill {
 
 /** MIDI number of a concert note such as "Bb3" or "F#4", or null when it names no pitch. */
 export function noteMidi (name: string): number | null {
-  const midi = Note.midi(name)
-  return typeof midi === 'number' && Number.isInteger(midi) ? midi : null
+  try {
+    const midi = noteToMidi(name)
+    return Number.isInteger(midi) ? midi : null
+  } catch {
+    return null // the tuning engine's parser throws TuningError for anything that is not a note
+  }
 }
 
 /**

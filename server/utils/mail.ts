@@ -64,10 +64,15 @@ export async function stopMail (): Promise<void> {
   await m?.close()
 }
 
-/** Whether an address list ("Ann <ann@example.org>, bob@example.org") includes the address. */
-export function mailIsFor (to: string, email: string): boolean {
-  const want = email.trim().toLowerCase()
-  return (to.toLowerCase().match(/[^\s<>,;"]+@[^\s<>,;"]+/g) ?? []).includes(want)
+/** Whether a caught message's recipients (bare addresses) include the address. */
+export function mailIsFor (message: { recipients: string[] }, email: string): boolean {
+  return message.recipients.includes(email.trim().toLowerCase())
+}
+
+/** A caught message without its internal recipients list (the shape the API answers). */
+export function publicMail<T extends { recipients: string[] }> (message: T): Omit<T, 'recipients'> {
+  const { recipients: _, ...rest } = message
+  return rest
 }
 
 /** The password-reset message. */

@@ -107,7 +107,7 @@ export async function receiveUpload (event: H3Event, store: UploadStore, opts: U
     maxFieldsSize: opts.maxFieldsBytes ?? 64 * 1024,
     allowEmptyFiles: true,
     minFileSize: 0,
-    fileWriteStreamHandler: (file?: formidable.VolatileFile) => {
+    fileWriteStreamHandler: (file?: unknown) => {
       const f = file as unknown as { fieldName?: string, originalFilename?: string | null }
       if (f.fieldName !== opts.fileField) {
         return refusingWritable(new UploadRefused(400, 'unexpected_file', 'Unexpected file field', { field: f.fieldName ?? null, expected: opts.fileField }))
@@ -281,7 +281,7 @@ export async function receiveSmallFile (event: H3Event, opts: { fileField: strin
     maxFieldsSize: 64 * 1024,
     allowEmptyFiles: true,
     minFileSize: 0,
-    fileWriteStreamHandler: (f?: formidable.VolatileFile) => {
+    fileWriteStreamHandler: (f?: unknown) => {
       const v = f as unknown as { fieldName?: string, originalFilename?: string | null }
       if (v.fieldName !== opts.fileField) {
         return refusingWritable(new UploadRefused(400, 'unexpected_file', 'Unexpected file field', { field: v.fieldName ?? null, expected: opts.fileField }))

@@ -10,7 +10,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { startApp, type App } from './harness'
 import {
   FIXTURES, TRIAD_MIDI, cents, dbQuery, ensembleId, equalHz, filesUnder, importDrill, postTake, readEvents,
-  storedObjects, triadDrill, triadTake, waitForTake,
+  retryStaleSockets, sameBytes, storedObjects, triadDrill, triadTake, waitForTake,
 } from './takes-helpers'
 import { encodeWav } from '../../server/analysis/wav'
 
@@ -31,7 +31,7 @@ beforeAll(async () => {
   // A temp folder of the app's own: uploads must leave nothing in it.
   tmp = join(dir, 'tmp')
   mkdirSync(tmp, { recursive: true })
-  app = await startApp({ dir, env: { TMPDIR: tmp } })
+  app = retryStaleSockets(await startApp({ dir, env: { TMPDIR: tmp } }))
   director = await app.login('helena.marsh@example.org')
   clara = await app.login('clara.lindqvist@example.org')
   aisha = await app.login('aisha.bello@example.org')
@@ -145,16 +145,16 @@ describe('a WAV take', () => {
     const whole = await app.fetch(`/takes/${takeId}/audio`, { cookie: clara })
     expect(whole.status).toBe(200)
     expect(whole.headers.get('accept-ranges')).toBe('bytes')
-    expect(new Uint8Array(await whole.arrayBuffer())).toEqual(wav)
+    expect(sameBytes(await whole.arrayBuffer(), wav)).toBe(true)
 
     const part = await app.fetch(`/takes/${takeId}/audio`, { cookie: clara, headers: { range: 'bytes=100-1099' } })
     expect(part.status).toBe(206)
     expect(part.headers.get('content-range')).toBe(`bytes 100-1099/${wav.length}`)
-    expect(new Uint8Array(await part.arrayBuffer())).toEqual(wav.subarray(100, 1100))
+    expect(sameBytes(await part.arrayBuffer(), wav.subarray(100, 1100))).toBe(true)
 
     const tail = await app.fetch(`/takes/${takeId}/audio`, { cookie: director, headers: { range: 'bytes=-10' } })
     expect(tail.status).toBe(206)
-    expect(new Uint8Array(await tail.arrayBuffer())).toEqual(wav.subarray(wav.length - 10))
+    expect(sameBytes(await tail.arrayBuffer(), wav.subarray(wav.length - 10))).toBe(true)
 
     const beyond = await app.fetch(`/takes/${takeId}/audio`, { cookie: clara, headers: { range: `bytes=${wav.length + 10}-` } })
     expect(beyond.status).toBe(416)
@@ -325,7 +325,7 @@ describe('audio that cannot be scored', () => {
     expect(t.report).toBeNull()
     const audio = await app.fetch(`/takes/${r.body.id}/audio`, { cookie: clara })
     expect(audio.status).toBe(200)
-    expect(new Uint8Array(await audio.arrayBuffer())).toEqual(silent)
+    expect(sameBytes(await audio.arrayBuffer(), silent)).toBe(true)
     // Not retried: the audio will not change on a second try.
     expect(dbQuery(app, 'select status, attempts from jobs where take_id = ?', r.body.id)).toEqual([{ status: 'failed', attempts: 1 }])
     // A re-score needs a measurement.

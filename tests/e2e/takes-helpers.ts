@@ -84,7 +84,7 @@ export async function postTake (app: App, cookie: string, f: { drillId: number |
   form.append('part', f.part)
   if (f.assignmentId) form.append('assignmentId', String(f.assignmentId))
   if (f.idempotencyKey) form.append('idempotencyKey', f.idempotencyKey)
-  form.append('audio', new Blob([f.audio], { type: f.type ?? 'application/octet-stream' }), f.name ?? 'take.wav')
+  form.append('audio', new Blob([new Uint8Array(f.audio)], { type: f.type ?? 'application/octet-stream' }), f.name ?? 'take.wav')
   const r = await app.fetch('/api/takes', { method: 'POST', body: form, cookie })
   return { status: r.status, body: await r.json().catch(() => null) as any }
 }
@@ -251,4 +251,29 @@ export function multipartUploadsStarted (app: App): number {
     try { n += readdirSync(join(root, b, '._S3rver_uploads')).length } catch { /* none */ }
   }
   return n
+}
+
+/**
+ * Makes app.fetch send a request again when it went out on a kept-alive socket the server had
+ * just closed for idleness (undici: "other side closed" before any answer), as browsers do. The
+ * tests block their event loop while synthesising takes, which makes that race likely.
+ */
+export function retryStaleSockets (app: App): App {
+  const plain = app.fetch
+  app.fetch = async (path, init = {}) => {
+    try {
+      return await plain(path, init)
+    } catch (err) {
+      const code = (err as { cause?: { code?: string } })?.cause?.code
+      if (code !== 'UND_ERR_SOCKET' && code !== 'ECONNRESET') throw err
+      if (init.body instanceof ReadableStream) throw err // a streamed body cannot be sent twice
+      return plain(path, init)
+    }
+  }
+  return app
+}
+
+/** Byte-for-byte equality of two buffers (fast, unlike a deep equal of 500 000 elements). */
+export function sameBytes (a: ArrayBuffer | Uint8Array, b: Uint8Array): boolean {
+  return Buffer.from(a instanceof Uint8Array ? a : new Uint8Array(a)).equals(Buffer.from(b))
 }

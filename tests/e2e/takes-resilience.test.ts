@@ -7,7 +7,7 @@ import { join } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { startApp, type App } from './harness'
 import {
-  cutOffUpload, dbQuery, ensembleId, importDrill, longDrill, longTake, multipartUploadsStarted, postTake, serverPid, storedObjects,
+  cutOffUpload, dbQuery, ensembleId, importDrill, longDrill, longTake, multipartUploadsStarted, postTake, retryStaleSockets, serverPid, storedObjects,
   triadDrill, triadTake, waitForTake,
 } from './takes-helpers'
 import { encodeWav } from '../../server/analysis/wav'
@@ -24,7 +24,7 @@ let drillId: number
 
 beforeAll(async () => {
   dir = mkdtempSync(join(tmpdir(), 'driftline-e2e-resilience-'))
-  app = await startApp({ dir, env })
+  app = retryStaleSockets(await startApp({ dir, env }))
   director = await app.login('helena.marsh@example.org')
   clara = await app.login('clara.lindqvist@example.org')
   choir = await ensembleId(app, director, /Choir/)
@@ -87,7 +87,7 @@ describe('an upload over the size limit', () => {
     const form = new FormData()
     form.append('drillId', String(drillId))
     form.append('part', 'Soprano')
-    form.append('audio', new Blob([big]), 'big.wav')
+    form.append('audio', new Blob([new Uint8Array(big)]), 'big.wav')
     // A streamed body has no Content-Length: the limit must hold while reading.
     const encoded = new Response(form)
     const body = encoded.body!
@@ -122,7 +122,7 @@ describe('a server killed in the middle of an analysis', () => {
     await app.stop() // reaps the killed process; the folder stays (it was given)
     expect(dbQuery(app, 'select status from jobs where take_id = ?', id)).toEqual([{ status: 'running' }])
 
-    app = await startApp({ dir, env })
+    app = retryStaleSockets(await startApp({ dir, env }))
     clara = await app.login('clara.lindqvist@example.org')
     director = await app.login('helena.marsh@example.org')
     const t = await waitForTake(app, clara, id, 120_000)

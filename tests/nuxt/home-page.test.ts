@@ -1,4 +1,4 @@
-import { describe, expect, it } from 'vitest'
+import { describe, expect, it, vi } from 'vitest'
 import { mountSuspended, registerEndpoint } from '@nuxt/test-utils/runtime'
 import { createError } from 'h3'
 import HomePage from '~/pages/index.vue'
@@ -24,7 +24,12 @@ registerEndpoint('/api/home', () => {
 async function mountHome(data: HomeData | 'fail') {
   answer = data
   clearNuxtData('home')
-  return mountSuspended(HomePage)
+  const w = await mountSuspended(HomePage)
+  // The home is fetched lazily: wait until the loading skeleton gives way.
+  await vi.waitFor(() => {
+    if (w.text().includes('Loading your home page')) throw new Error('still loading')
+  }, { timeout: 5000, interval: 20 })
+  return w
 }
 
 describe('home page', () => {

@@ -68,3 +68,17 @@ describe('TakeHistory', () => {
     expect(w.find('table').exists()).toBe(false)
   })
 })
+
+describe('TakeHistory without figures', () => {
+  it('gives no comparison headline when this take has no mean deviation', async () => {
+    const w = await mountSuspended(TakeHistory, {
+      props: {
+        current: { id: 31, createdAt: '2026-03-11T18:00:00Z', meanAbsCents: null, withinToleranceShare: null },
+        earlier: [{ id: 30, createdAt: '2026-03-10T18:00:00Z', meanAbsCents: 6.1, withinToleranceShare: 0.8 }],
+        tolerance: 10,
+      },
+    })
+    expect(w.find('[data-testid="history-headline"]').exists()).toBe(false)
+    expect(w.text()).not.toContain('NaN')
+  })
+})

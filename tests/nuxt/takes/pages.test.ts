@@ -1,8 +1,14 @@
-import { describe, expect, it, vi } from 'vitest'
+import { beforeAll, describe, expect, it, vi } from 'vitest'
 import { flushPromises } from '@vue/test-utils'
 import { mountSuspended, registerEndpoint } from '@nuxt/test-utils/runtime'
-import { createError, readMultipartFormData } from 'h3'
+import { createError } from 'h3'
 import { computeTargets } from '#shared/tuning'
+// Imported up front: the pages are transformed while the file loads, not inside the test app's start-up.
+import DrillsPage from '~/pages/drills/index.vue'
+import TakePage from '~/pages/takes/[id].vue'
+import TakesPage from '~/pages/takes/index.vue'
+import DrillPage from '~/pages/drills/[id].vue'
+import NewTakePage from '~/pages/takes/new.vue'
 
 // Invented demo data (the contract's shapes); the check values are the trade's, noted beside them.
 const ensembles = [
@@ -14,18 +20,23 @@ const drillRow = {
   id: 5, title: 'Held triads in E♭', key: 'Eb major', tempo: 60, a4: 440, system: { name: 'just-root', seventh: 'harmonic', fraction: '1/4' },
   tolerance: 8, parts: [{ name: 'Soprano', instrument: 'voice-soprano' }, { name: 'Alto', instrument: null }], chords: 6, createdAt: '2026-03-01T10:00:00Z',
 }
+// A signed-in player, so the page guard lets the pages through.
+registerEndpoint('/api/_auth/session', () => ({ user: { id: 4, email: 'ada@example.org', name: 'Ada Example', siteRole: null }, loggedInAt: Date.now() }))
+beforeAll(async () => {
+  await useUserSession().fetch()
+})
+
 registerEndpoint('/api/ensembles', () => ensembles)
 registerEndpoint('/api/ensembles/1/drills', () => [drillRow])
 registerEndpoint('/api/ensembles/2/drills', () => [])
 
 let importCalls = 0
+let importFails = false
 registerEndpoint('/api/ensembles/1/drills/import', {
   method: 'POST',
-  handler: async (event) => {
+  handler: async () => {
     importCalls++
-    const parts = await readMultipartFormData(event)
-    const title = parts?.find(p => p.name === 'title')?.data.toString()
-    if (title === 'broken') {
+    if (importFails) {
       throw createError({ statusCode: 400, statusMessage: 'Invalid drill file', data: { code: 'bad_note', message: '"H4" is not a note name', path: 'chords.2.notes.Alto' } })
     }
     return { id: 77, parts: ['Soprano', 'Alto'], chords: 3 }
@@ -40,7 +51,7 @@ async function chooseFile(w: Awaited<ReturnType<typeof mountSuspended>>, file: F
 
 describe('pages/drills/index', () => {
   it('lists the drills of each active ensemble and offers the import to directors only', async () => {
-    const { default: Page } = await import('~/pages/drills/index.vue')
+    const Page = DrillsPage
     const w = await mountSuspended(Page)
     await flushPromises()
     expect(w.text()).toContain('Harbour Singers')
@@ -54,7 +65,7 @@ describe('pages/drills/index', () => {
   })
 
   it('imports a drill file, and shows the server’s reason when the file is refused', async () => {
-    const { default: Page } = await import('~/pages/drills/index.vue')
+    const Page = DrillsPage
     const w = await mountSuspended(Page)
     await flushPromises()
     // Wrong kind of file: refused before sending.
@@ -65,12 +76,12 @@ describe('pages/drills/index', () => {
     expect(w.text()).toContain('drill document (.json) or a Standard MIDI File')
 
     await chooseFile(w, new File(['{"title":"x"}'], 'drill.json', { type: 'application/json' }))
-    await w.find('input[name="title"]').setValue('broken')
+    importFails = true
     await w.find('form').trigger('submit')
     await vi.waitFor(() => expect(w.text()).toContain('The drill was not imported'))
     expect(w.text()).toContain('"H4" is not a note name (at chords.2.notes.Alto)')
 
-    await w.find('input[name="title"]').setValue('Good one')
+    importFails = false
     await w.find('form').trigger('submit')
     await vi.waitFor(() => expect(w.text()).toContain('Drill imported'))
     expect(w.text()).toContain('3 chords, parts Soprano, Alto')
@@ -104,6 +115,7 @@ const takeDetail = (status: string, extra: Record<string, unknown> = {}) => ({
 registerEndpoint('/api/drills/3', () => ({ id: 3, ensembleId: 1, ensembleName: 'Harbour Singers', role: 'player', document: doc, targets: computeTargets(doc), targetsError: null, preselectedPart: 'Alto' }))
 let current = takeDetail('analysed')
 registerEndpoint('/api/takes/9', () => current)
+registerEndpoint('/api/takes/10', () => ({ ...takeDetail('analysing'), id: 10 }))
 
 function mockBrowserOnly() {
   vi.doMock('wavesurfer.js', () => ({ default: { create: () => ({ on: () => {}, destroy: () => {}, playPause: () => {} }) } }))
@@ -115,7 +127,7 @@ describe('pages/takes/[id]', () => {
   it('shows the report of an analysed take: summary, holds, notes, history', async () => {
     mockBrowserOnly()
     current = takeDetail('analysed')
-    const { default: Page } = await import('~/pages/takes/[id].vue')
+    const Page = TakePage
     const w = await mountSuspended(Page, { route: '/takes/9' })
     await flushPromises()
     expect(w.text()).toContain('Alto · Ada Example')
@@ -133,10 +145,9 @@ describe('pages/takes/[id]', () => {
 
   it('shows the live status panel while the take is analysed', async () => {
     mockBrowserOnly()
-    current = takeDetail('analysing')
     vi.stubGlobal('EventSource', class { addEventListener() {} close() {} onerror = null })
-    const { default: Page } = await import('~/pages/takes/[id].vue')
-    const w = await mountSuspended(Page, { route: '/takes/9' })
+    const Page = TakePage
+    const w = await mountSuspended(Page, { route: '/takes/10' })
     await flushPromises()
     const panel = w.find('[data-status="analysing"]')
     expect(panel.text()).toContain('40 % done')
@@ -155,7 +166,7 @@ registerEndpoint('/api/takes', (event) => {
 
 describe('pages/takes/index', () => {
   it('lists takes with status and figures, and pages through them', async () => {
-    const { default: Page } = await import('~/pages/takes/index.vue')
+    const Page = TakesPage
     const w = await mountSuspended(Page, { route: '/takes' })
     await flushPromises()
     const row = w.find('tbody tr')
@@ -168,5 +179,59 @@ describe('pages/takes/index', () => {
     expect(w.find('a[rel="next"]').attributes('href')).toBe('/takes?page=2')
     expect(w.find('a[rel="prev"]').exists()).toBe(false)
     expect(w.find('caption').text()).toContain('45 takes')
+  })
+})
+
+registerEndpoint('/api/drills/4', () => ({ id: 4, ensembleId: 1, ensembleName: 'Harbour Singers', role: 'player', document: { ...doc, system: { name: 'scala', seventh: 'harmonic', fraction: '1/4' } }, targets: null, targetsError: { code: 'scala_missing', message: 'The scala system needs the text of a Scala .scl file' }, preselectedPart: null }))
+
+describe('pages/drills/[id]', () => {
+  it('shows the voicing in the drill’s system and recomputes it for another system', async () => {
+    const Page = DrillPage
+    const w = await mountSuspended(Page, { route: '/drills/3' })
+    await flushPromises()
+    expect(w.find('h1').text()).toBe('One chord')
+    const alto = w.findAll('[data-testid="voicing-grid"] tbody tr')[0]!
+    // Just third from the root: −13.7 ¢ from equal temperament (1200·log2(5/4) − 400, common practice).
+    expect(alto.find('[data-testid="cents-from-equal"]').text()).toContain('\u221213.7 ¢')
+    expect(w.find('[data-testid="record-link"]').attributes('href')).toBe('/takes/new?drillId=3&part=Alto')
+    expect(w.text()).toContain('Headphones: start quiet')
+    // Switch the practice system to equal temperament: every note 0.0 ¢ from equal.
+    await w.find('fieldset select').setValue('equal')
+    await flushPromises()
+    const cents = w.findAll('[data-testid="cents-from-equal"]').map(c => c.text().split(' · ')[0])
+    expect(cents.every(c => c === '0.0 ¢')).toBe(true)
+    expect(w.text()).toContain('Takes are still scored in the drill\'s system')
+  })
+
+  it('explains when the drill’s own targets cannot be computed and still lets the player pick a system', async () => {
+    const Page = DrillPage
+    const w = await mountSuspended(Page, { route: '/drills/4' })
+    await flushPromises()
+    expect(w.text()).toContain('needs the text of a Scala .scl file')
+    expect(w.find('[data-testid="voicing-grid"]').exists()).toBe(false)
+    await w.find('fieldset select').setValue('just-root')
+    await flushPromises()
+    expect(w.find('[data-testid="voicing-grid"]').exists()).toBe(true)
+  })
+})
+
+describe('pages/takes/new', () => {
+  it('preselects the part from the address and explains an unknown one', async () => {
+    const Page = NewTakePage
+    const w = await mountSuspended(Page, { route: '/takes/new?drillId=3&part=Bass' })
+    await flushPromises()
+    expect((w.find('#take-part').element as HTMLSelectElement).value).toBe('Bass')
+    const w2 = await mountSuspended(Page, { route: '/takes/new?drillId=3&part=Tenor' })
+    await flushPromises()
+    expect(w2.text()).toContain('no part called “Tenor”')
+    // Falls back to the part of the player's section.
+    expect((w2.find('#take-part').element as HTMLSelectElement).value).toBe('Alto')
+  })
+
+  it('asks for a drill when none is given', async () => {
+    const Page = NewTakePage
+    const w = await mountSuspended(Page, { route: '/takes/new' })
+    await flushPromises()
+    expect(w.text()).toContain('Choose a drill first')
   })
 })

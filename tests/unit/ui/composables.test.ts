@@ -3,6 +3,7 @@ import { safeRedirect } from '../../../composables/useSafeRedirect'
 import { apiProblem, tooManyAttemptsMessage } from '../../../composables/useApiError'
 import { formatAbsolute, formatRelative } from '../../../composables/useNow'
 import { linkifyParts } from '../../../composables/useDevMail'
+import { routePatternToRegExp } from '../../../composables/useRouteExists'
 
 describe('safeRedirect (no open redirect after sign-in)', () => {
   it.each([
@@ -96,5 +97,22 @@ describe('linkifyParts', () => {
     ])
     expect(linkifyParts('no links')).toEqual([{ text: 'no links' }])
     expect(linkifyParts('javascript:alert(1)')).toEqual([{ text: 'javascript:alert(1)' }])
+  })
+})
+
+describe('routePatternToRegExp (which links may be drawn)', () => {
+  it.each([
+    ['/', '/', true],
+    ['/', '/x', false],
+    ['/ensembles', '/ensembles', true],
+    ['/ensembles', '/ensembles/3', false],
+    ['/takes/:id()', '/takes/12', true],
+    ['/takes/:id()', '/takes', false],
+    ['/takes/:id()', '/takes/12/more', false],
+    ['/dev/mailbox', '/dev/mailbox', true],
+    ['/:slug(.*)*', '/anything/at/all', true],
+    ['/a/:b?', '/a/', true],
+  ])('%s matches %s: %s', (pattern, path, ok) => {
+    expect(routePatternToRegExp(pattern).test(path)).toBe(ok)
   })
 })

@@ -8,6 +8,6 @@ export default defineEventHandler(async (event) => {
   const dir = await caughtMailDir()
   if (!dir) throw apiError(404, 'not_found', 'No development mailbox')
   const message = await readCaughtMail(dir, id)
-  if (!message || (user.siteRole !== 'admin' && !mailIsFor(message.to, user.email))) throw apiError(404, 'not_found', 'Message not found')
-  return message
+  if (!message || (user.siteRole !== 'admin' && !mailIsFor(message, user.email))) throw apiError(404, 'not_found', 'Message not found')
+  return publicMail(message)
 })

@@ -5,5 +5,5 @@ export default defineEventHandler(async (event) => {
   const dir = await caughtMailDir()
   if (!dir) throw apiError(404, 'not_found', 'No development mailbox')
   const messages = await listCaughtMail(dir)
-  return user.siteRole === 'admin' ? messages : messages.filter(m => mailIsFor(m.to, user.email))
+  return messages.filter(m => user.siteRole === 'admin' || mailIsFor(m, user.email)).map(publicMail)
 })

@@ -1,3 +1,5 @@
+import { reanalyseTake } from '../../../utils/takes'
+
 // POST /api/takes/:id/reanalyse → 202 { status: 'queued' } (the player or a director; 409 while
 // an analysis is queued or running).
 export default defineEventHandler(async (event) => {

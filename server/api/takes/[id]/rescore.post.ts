@@ -1,5 +1,6 @@
 import { z } from 'zod'
 import { A4_MAX, A4_MIN, SystemOptions } from '../../../../shared/drill/schema'
+import { rescoreTake } from '../../../utils/takes'
 
 const Body = z.object({
   system: SystemOptions,
