@@ -143,6 +143,35 @@ function buildCorpus (): TakeCase[] {
   return takes
 }
 
+// Bias sweep: per pitch band one take of eight clean steady notes (SNR 30 dB, no vibrato, no
+// wobble) spread over the band, voice and brass spectra alternating between bands' timbres.
+function buildSweep (): TakeCase[] {
+  const takes: TakeCase[] = []
+  const notesPerBand = QUICK ? 4 : 8
+  for (const [bi, [lo, hi, timbres]] of PITCH_BANDS.entries()) {
+    const sr = 44100
+    const expected: ExpectedHold[] = []
+    const holds: SynthHold[] = []
+    const rand = mulberry32(SEED + 100 + bi)
+    for (let i = 0; i < notesPerBand; i++) {
+      // Frequencies spread evenly (in log) over the band, each a random few cents off equal.
+      const f = lo * Math.pow(hi / lo, (i + 0.5) / notesPerBand)
+      const midi = Math.round(69 + 12 * Math.log2(f / 440))
+      const eq = 440 * Math.pow(2, (midi - 69) / 12)
+      expected.push({ index: i, startS: 2 * i, endS: 2 * i + 2, midi, expectedHz: eq })
+      holds.push({ startS: 0.5 + 2 * i + 0.04, endS: 0.5 + 2 * i + 1.75, hz: eq * Math.pow(2, (rand() * 40 - 20) / 1200) })
+    }
+    const durationS = 0.5 + 2 * notesPerBand + 0.6
+    const syn = synthTakeWithTruth({ sampleRate: sr, durationS, holds, timbre: timbres[bi % timbres.length]!, snrDb: 30, seed: SEED + 200 + bi })
+    const truths = syn.holds.map((t, i) => ({
+      takeId: 1000 + bi, bandHz: lo, snrDb: 30, vibratoCents: 0, wobble: false,
+      hz: holds[i]!.hz, truthHz: t.centreHz, steadyStartS: t.steadyStartS, steadyEndS: t.steadyEndS,
+    }))
+    takes.push({ id: 1000 + bi, sampleRate: sr, bits: 16, wav: encodeWav(syn.samples, sr), durationS, expected, truths })
+  }
+  return takes
+}
+
 // ---------- methods
 interface Result { found: boolean, hz: number | null }
 
@@ -223,38 +252,43 @@ async function main () {
     return
   }
 
-  const rows: Record<'engine' | 'yin' | 'mcleod', Row[]> = { engine: [], yin: [], mcleod: [] }
-  let engineCpu = 0
-  let decodeCpu = 0
-  for (const take of corpus) {
-    const c0 = cpuMs()
-    const audio = await decodeAudio(take.wav)
-    const c1 = cpuMs()
-    if (audio.sampleRate !== take.sampleRate) throw new Error(`decoded rate ${audio.sampleRate} ≠ ${take.sampleRate}`)
-    const m = measureTake(audio, take.expected, { trace: false })
-    const c2 = cpuMs()
-    decodeCpu += c1 - c0
-    engineCpu += c2 - c0
-    const notes = take.expected.filter(h => h.midi !== null)
-    const truths = take.truths.filter((t): t is Truth => t !== null)
-    notes.forEach((h, i) => {
-      const held = m.holds.find(x => x.index === h.index)!
-      const truth = truths[i]!
-      rows.engine.push({ truth, err: held.detectedHz === null ? null : cents(held.detectedHz, truth.truthHz) })
-    })
-    const windows = truths.map(t => [t.steadyStartS, t.steadyEndS] as [number, number])
-    for (const method of ['yin', 'mcleod'] as const) {
-      const res = plainCentres(audio.samples, audio.sampleRate, windows, method)
-      res.forEach((r, i) => rows[method].push({ truth: truths[i]!, err: r.hz === null ? null : cents(r.hz, truths[i]!.truthHz) }))
+  const evaluate = async (takes: TakeCase[]) => {
+    const rows: Record<'engine' | 'yin' | 'mcleod', Row[]> = { engine: [], yin: [], mcleod: [] }
+    let engineCpu = 0
+    let decodeCpu = 0
+    for (const take of takes) {
+      const c0 = cpuMs()
+      const audio = await decodeAudio(take.wav)
+      const c1 = cpuMs()
+      if (audio.sampleRate !== take.sampleRate) throw new Error(`decoded rate ${audio.sampleRate} ≠ ${take.sampleRate}`)
+      const m = measureTake(audio, take.expected, { trace: false })
+      const c2 = cpuMs()
+      decodeCpu += c1 - c0
+      engineCpu += c2 - c0
+      const notes = take.expected.filter(h => h.midi !== null)
+      const truths = take.truths.filter((t): t is Truth => t !== null)
+      notes.forEach((h, i) => {
+        const held = m.holds.find(x => x.index === h.index)!
+        const truth = truths[i]!
+        rows.engine.push({ truth, err: held.detectedHz === null ? null : cents(held.detectedHz, truth.truthHz) })
+      })
+      const windows = truths.map(t => [t.steadyStartS, t.steadyEndS] as [number, number])
+      for (const method of ['yin', 'mcleod'] as const) {
+        const res = plainCentres(audio.samples, audio.sampleRate, windows, method)
+        res.forEach((r, i) => rows[method].push({ truth: truths[i]!, err: r.hz === null ? null : cents(r.hz, truths[i]!.truthHz) }))
+      }
     }
+    return { rows, engineCpu, decodeCpu }
   }
+  const { rows, engineCpu, decodeCpu } = await evaluate(corpus)
+  const sweep = await evaluate(buildSweep())
 
   // Speed on a 60-s take (four-voice-range drill sung by an alto, SNR 30 dB, vibrato ±20 ¢).
   const speed = await speedRun()
 
   const methods = ['engine', 'yin', 'mcleod'] as const
   const names = { engine: 'Driftline', yin: 'YIN (pitchfinder)', mcleod: 'McLeod (pitchy)' }
-  const table: string[][] = [['figure', 'target', names.engine, names.yin, names.mcleod]]
+  const table: string[][] = [['figure (counts of holds in brackets)', 'target', names.engine, names.yin, names.mcleod]]
   const stat = (m: typeof methods[number], filter: (t: Truth) => boolean, f: (errs: number[]) => string) => {
     const errs = rows[m].filter(r => filter(r.truth) && r.err !== null && Math.abs(r.err) <= 50).map(r => r.err!)
     return f(errs)
@@ -270,13 +304,19 @@ async function main () {
   table.push(['|error| median / p95, vibrato ±30 ¢, SNR ≥ 20 dB (¢)', '≤ 0.5 median', ...methods.map(m => stat(m, t => t.vibratoCents >= 29.9 && t.snrDb >= 20, medP95))])
   table.push(['|error| median / p95, any vibrato, all SNR (¢)', '—', ...methods.map(m => stat(m, t => t.vibratoCents > 0, medP95))])
   for (const [lo, hi] of PITCH_BANDS) {
-    table.push([`bias (mean signed error) ${lo}–${hi} Hz, SNR ≥ 20, no vibrato (¢)`, '|bias| ≤ 0.1', ...methods.map(m => stat(m, t => t.bandHz === lo && noVib(t) && t.snrDb >= 20, e => e.length ? `${sgn(e.reduce((s, v) => s + v, 0) / e.length)} (${e.length})` : '—'))])
+    table.push([`bias: mean signed error ± SE, ${lo}–${hi} Hz sweep (¢)`, '|bias| ≤ 0.1', ...methods.map(m => {
+      const e = sweep.rows[m].filter(r => r.truth.bandHz === lo && r.err !== null && Math.abs(r.err) <= 50).map(r => r.err!)
+      if (e.length < 2) return e.length ? `${sgn(e[0]!)} (1)` : '—'
+      const mean = e.reduce((a, v) => a + v, 0) / e.length
+      const sd = Math.sqrt(e.reduce((a, v) => a + (v - mean) ** 2, 0) / (e.length - 1))
+      return `${sgn(mean)} ± ${fmt(sd / Math.sqrt(e.length))} (${e.length})`
+    })])
   }
-  for (const m of methods) void m
-  const gross = (m: typeof methods[number]) => rows[m].filter(r => r.err !== null && Math.abs(r.err) > 50).length
-  const found = (m: typeof methods[number]) => rows[m].filter(r => r.err !== null).length
-  table.push(['gross errors (> 50 ¢) among holds found', '0', ...methods.map(m => String(gross(m)))])
-  table.push(['holds found', '≥ 99 %', ...methods.map(m => `${found(m)}/${rows[m].length} (${(100 * found(m) / rows[m].length).toFixed(1)} %)`)])
+  const all = (m: typeof methods[number]) => [...rows[m], ...sweep.rows[m]]
+  const gross = (m: typeof methods[number]) => all(m).filter(r => r.err !== null && Math.abs(r.err) > 50).length
+  const found = (m: typeof methods[number]) => all(m).filter(r => r.err !== null).length
+  table.push(['gross errors (> 50 ¢) among holds found (corpus + sweep)', '0', ...methods.map(m => String(gross(m)))])
+  table.push(['holds found (corpus + sweep)', '≥ 99 %', ...methods.map(m => `${found(m)}/${all(m).length} (${(100 * found(m) / all(m).length).toFixed(1)} %)`)])
   table.push(['speed, 60-s take incl. decode (× real time, one core)', '≥ 100×', `${speed.engine.toFixed(0)}×`, `${speed.yin.toFixed(1)}×`, `${speed.mcleod.toFixed(1)}×`])
   table.push(['speed vs plain YIN', '≥ 15×', `${(speed.engine / speed.yin).toFixed(1)}×`, '1×', `${(speed.mcleod / speed.yin).toFixed(1)}×`])
   table.push(['engine speed over the whole corpus (× real time)', '—', `${(audioS / (engineCpu / 1000)).toFixed(0)}× (decode ${(100 * decodeCpu / engineCpu).toFixed(0)} % of it)`, '', ''])
@@ -285,12 +325,12 @@ async function main () {
     console.log(r.map((cell, c) => cell.padEnd(widths[c]!)).join(' | ').trimEnd())
     if (i === 0) console.log(widths.map(w => '-'.repeat(w)).join('-|-'))
   }
-  const missed = rows.engine.filter(r => r.err === null || Math.abs(r.err) > 50)
+  const missed = [...rows.engine, ...sweep.rows.engine].filter(r => r.err === null || Math.abs(r.err) > 50)
   if (missed.length) {
     console.log('\nEngine holds not found or grossly wrong:')
     for (const r of missed.slice(0, 20)) console.log(`  take ${r.truth.takeId}: ${r.truth.hz.toFixed(2)} Hz, SNR ${r.truth.snrDb} dB, vibrato ${r.truth.vibratoCents.toFixed(0)} ¢ → ${r.err === null ? 'not found' : sgn(r.err, 1) + ' ¢'}`)
   }
-  console.log(`\nTotal benchmark time ${((Date.now() - t0) / 1000).toFixed(1)} s.`)
+  console.log(`\nTotal benchmark time ${((Date.now() - t0) / 1000).toFixed(1)} s (CPU ${(cpuMs() / 1000).toFixed(1)} s).`)
 }
 
 async function speedRun (): Promise<{ engine: number, yin: number, mcleod: number }> {

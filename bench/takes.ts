@@ -187,6 +187,9 @@ async function main () {
     const failed = rows.filter(r => r.status !== 'analysed').length
     if (failed) console.log(`\n${failed} take(s) not analysed`)
     console.log(`\nload after the run ${loadavg().map(l => l.toFixed(2)).join(' ')}`)
+  } catch (err) {
+    console.error(`server output:\n${app.output().split('\n').slice(-40).join('\n')}`)
+    throw err
   } finally {
     await app.stop()
   }

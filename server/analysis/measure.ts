@@ -47,7 +47,7 @@ const log2c = (x: number) => 1200 * Math.log2(x)
 export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts: MeasureOptions = {}): Measurement {
   const progress = opts.onProgress ?? (() => {})
   const sr = audio.sampleRate
-  const x = audio.samples
+  let x = audio.samples
   if (!x || x.length === 0) throw new AnalysisError('empty')
   if (!(sr >= 1000) || !Number.isFinite(sr)) throw new AnalysisError('corrupt', { sampleRate: sr })
   const notes = expected.filter(h => h.midi !== null && h.expectedHz > 0 && Number.isFinite(h.expectedHz))
@@ -56,13 +56,9 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
     throw new AnalysisError('no_holds', { reason: 'part_rests' }, 'This part rests throughout the drill: there is nothing to measure')
   }
   const durationS = x.length / sr
-  let peak = 0
-  let clipped = 0
-  for (let i = 0; i < x.length; i++) {
-    const v = Math.abs(x[i]!)
-    if (v > peak) peak = v
-    if (v >= 0.999) clipped++
-  }
+  const { peak, clipped, dc } = scan(x)
+  // A constant offset (some interfaces record one) would only raise the energy floor: remove it.
+  if (Math.abs(dc) > 1e-4) x = subtract(x, dc)
   if (!(peak > SILENT_PEAK)) throw new AnalysisError('silent', { peakDbfs: peak > 0 ? +(20 * Math.log10(peak)).toFixed(1) : null })
   progress(0.02)
 
@@ -92,13 +88,6 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
   if (peak < 0.01) warnings.push({ code: 'low_level', message: 'The recording is very quiet (peak below −40 dBFS); measurements may be less certain' })
 
   const alignment = alignHolds(trackOf, notes)
-  if (process.env.DL_DEBUG) {
-    const tr = trackOf[0]!
-    let l = ''
-    for (let j = 0; j < tr.times.length; j++) l += `${tr.times[j]!.toFixed(2)}:${tr.voiced[j] ? tr.hz[j]!.toFixed(1) : '-'} `
-    console.log('DBG track', l)
-    console.log('DBG align', alignment.timeScale, alignment.offsetS, JSON.stringify(alignment.placements))
-  }
   progress(0.4)
 
   const holds: MeasuredHold[] = []
@@ -131,6 +120,28 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
     warnings,
     engine: ENGINE_VERSION,
   }
+}
+
+// Peak, samples at full scale and mean of a signal, in one pass.
+function scan (x: Float32Array): { peak: number, clipped: number, dc: number } {
+  let peak = 0
+  let clipped = 0
+  let sum = 0
+  const n = x.length
+  for (let i = 0; i < n; i++) {
+    const v = x[i]!
+    const a = v < 0 ? -v : v
+    if (a > peak) peak = a
+    if (a >= 0.999) clipped++
+    sum += v
+  }
+  return { peak, clipped, dc: n > 0 ? sum / n : 0 }
+}
+
+function subtract (x: Float32Array, c: number): Float32Array {
+  const y = new Float32Array(x.length)
+  for (let i = 0; i < x.length; i++) y[i] = x[i]! - c
+  return y
 }
 
 function round (v: number, d: number): number {
@@ -408,7 +419,6 @@ function measureHold (pyr: Pyramid, track: CoarseTrack, h: ExpectedHold, startS:
   let best = -1
   for (const [o, list] of byOct) if (list.length > best) { best = list.length; oct = o }
   const rests = byOct.get(oct) ?? []
-  if (process.env.DL_DEBUG) console.log('DBG oct', oct, [...byOct.entries()].map(([o, l]) => [o, l.length, median(l)]))
   if (rests.length < 3) return notFound(h, startS, endS, 'no_pitch', `No steady pitch near ${noteWord(h)} where this chord should be`)
   const guessCents = median(rests)
   const guessHz = h.expectedHz * Math.pow(2, guessCents / 1200)
@@ -435,7 +445,6 @@ function measureHold (pyr: Pyramid, track: CoarseTrack, h: ExpectedHold, startS:
     }
   }
   const bins = binTrack(tr, h.expectedHz, startS, endS)
-  if (process.env.DL_DEBUG) console.log('DBG refine K', tr.harmonics, 'rate', tr.rate, 'n', tr.hz.length, 'finite', tr.hz.filter(Number.isFinite).length, 'harm', median(tr.harmonicity), 'bins', bins.c.filter(Number.isFinite).length, '/', bins.c.length, 'hp', Array.from(tr.harmonicPower).map(v => (10 * Math.log10(v)).toFixed(0)).join(' '))
   const n = bins.c.length
   // Main plateau: the longest run (gaps ≤ 60 ms) within 100 ¢ of the run's median.
   const sm = smooth(bins.c, 11)
@@ -520,33 +529,50 @@ function measureHold (pyr: Pyramid, track: CoarseTrack, h: ExpectedHold, startS:
     return notFound(h, startS, endS, 'wrong_note', `Heard a pitch about ${semis} semitone${semis === 1 ? '' : 's'} ${centre > 0 ? 'above' : 'below'} ${noteWord(h)}`)
   }
 
-  // Spread: SD of the 50-ms-smoothed residual with the vibrato removed (trend kept).
-  const vibOnly = new Float64Array(n).fill(NaN)
-  for (let k = lo; k <= hi; k++) {
-    if (!Number.isFinite(bins.c[k]!)) continue
-    let v = centre
-    if (fit.vib) {
-      const d = bins.t[k]! - fit.tMid
-      v += fit.vib.a * Math.cos(fit.vib.omega * d) + fit.vib.b * Math.sin(fit.vib.omega * d)
+  // Decompose the steady residual e = c − centre − trend (gaps interpolated) into a slow part
+  // (zero-phase low-pass at 2 Hz, 8th order: wobble, wander), a vibrato band (2–12 Hz) and
+  // faster noise. Real vibrato wanders in rate and depth, so its extent is taken from the band's
+  // RMS (·√2), not from the single fitted sinusoid.
+  const m0 = hi - lo + 1
+  const e = new Float64Array(m0)
+  {
+    let last = NaN
+    for (let k = lo; k <= hi; k++) {
+      const v = bins.c[k]!
+      e[k - lo] = Number.isFinite(v) ? v - centre - fit.slope * (bins.t[k]! - fit.tMid) : NaN
     }
-    vibOnly[k] = bins.c[k]! - v
+    // Linear interpolation over gaps (ends held).
+    let prevIdx = -1
+    for (let q = 0; q < m0; q++) {
+      if (!Number.isFinite(e[q]!)) continue
+      if (prevIdx < 0) for (let z = 0; z < q; z++) e[z] = e[q]!
+      else for (let z = prevIdx + 1; z < q; z++) e[z] = e[prevIdx]! + (e[q]! - e[prevIdx]!) * (z - prevIdx) / (q - prevIdx)
+      prevIdx = q
+      last = e[q]!
+    }
+    for (let z = prevIdx + 1; z < m0; z++) e[z] = Number.isFinite(last) ? last : 0
   }
-  const vs = smooth(vibOnly, 11)
+  const slow = filtfilt(e, 1 / BIN_S, 2, 2)
+  const fast = filtfilt(e, 1 / BIN_S, 12, 1)
+  // Spread: SD about the centre of the slow part plus the trend (vibrato and noise excluded).
   let s2 = 0
-  let ns = 0
-  for (let k = lo; k <= hi; k++) if (Number.isFinite(vs[k]!)) { s2 += vs[k]! * vs[k]!; ns++ }
-  const spread = ns > 0 ? Math.sqrt(s2 / ns) : 0
-  // Standard error of the centre from the means of four blocks of the full-model residual.
+  for (let q = 0; q < m0; q++) {
+    const v = slow[q]! + fit.slope * (bins.t[lo + q]! - fit.tMid)
+    s2 += v * v
+  }
+  const spread = m0 > 0 ? Math.sqrt(s2 / m0) : 0
+  // Standard error of the centre from the means of four blocks of the residual without the
+  // vibrato band (approximate: the blocks are treated as independent).
   const blocks = 4
   const bm: number[] = []
-  const per = Math.floor((hi - lo + 1) / blocks)
+  const per = Math.floor(m0 / blocks)
   for (let q = 0; q < blocks; q++) {
-    let s = 0
+    let sb = 0
     let c = 0
-    for (let k = lo + q * per; k < lo + (q + 1) * per; k++) if (Number.isFinite(fit.resid[k]!)) { s += fit.resid[k]!; c++ }
-    if (c > 0) bm.push(s / c)
+    for (let z = q * per; z < (q + 1) * per; z++) { sb += e[z]! - (fast[z]! - slow[z]!); c++ }
+    if (c > 0) bm.push(sb / c)
   }
-  const se = bm.length >= 2 ? Math.sqrt(bm.reduce((s, v) => s + v * v, 0) / (bm.length * (bm.length - 1))) : 1
+  const se = bm.length >= 2 ? Math.sqrt(bm.reduce((acc, v) => acc + v * v, 0) / (bm.length * (bm.length - 1))) : 1
   let hSum = 0
   let hN = 0
   for (let k = lo; k <= hi; k++) if (bins.h[k]! > 0) { hSum += bins.h[k]!; hN++ }
@@ -556,7 +582,13 @@ function measureHold (pyr: Pyramid, track: CoarseTrack, h: ExpectedHold, startS:
   if (fit.vib) {
     const rateHz = fit.vib.omega / (2 * Math.PI)
     const g = Math.max(0.3, vibratoGain(rateHz, tr))
-    vibrato = { rateHz: round(rateHz, 2), extentCents: round(Math.hypot(fit.vib.a, fit.vib.b) / g, 1) }
+    // RMS of the vibrato band away from the filter's edges; a sinusoid's peak is √2·RMS.
+    const edge = Math.min(Math.round(0.1 / BIN_S), Math.floor(m0 / 4))
+    let v2 = 0
+    let nv = 0
+    for (let q = edge; q < m0 - edge; q++) { const v = fast[q]! - slow[q]!; v2 += v * v; nv++ }
+    const extent = nv > 0 ? Math.SQRT2 * Math.sqrt(v2 / nv) : Math.hypot(fit.vib.a, fit.vib.b)
+    vibrato = { rateHz: round(rateHz, 2), extentCents: round(extent / g, 1) }
   }
   const usable = Math.min(1, steadyS / Math.max(0.4, 0.5 * expectedDur))
   const conf = usable *
@@ -586,6 +618,44 @@ function measureHold (pyr: Pyramid, track: CoarseTrack, h: ExpectedHold, startS:
   }
   if (withTrace) out.trace = makeTrace(bins, h.expectedHz)
   return out
+}
+
+// Zero-phase Butterworth low-pass (bilinear biquads run forward and backward; `sections`
+// biquads each way), with 0.5 s of mirrored padding against edge transients.
+function filtfilt (x: Float64Array, rate: number, cutoff: number, sections: number): Float64Array {
+  const n = x.length
+  if (n === 0) return new Float64Array(0)
+  const pad = Math.min(n - 1, Math.round(0.5 * rate))
+  const m = n + 2 * pad
+  let y = new Float64Array(m)
+  for (let i = 0; i < m; i++) {
+    const j = i - pad
+    y[i] = j < 0 ? 2 * x[0]! - x[-j]! : j >= n ? 2 * x[n - 1]! - x[2 * (n - 1) - j]! : x[j]!
+  }
+  const K = Math.tan(Math.PI * Math.min(cutoff, 0.45 * rate) / rate)
+  const q = Math.SQRT1_2
+  const norm = 1 / (1 + K / q + K * K)
+  const b0 = K * K * norm
+  const b1 = 2 * b0
+  const a1 = 2 * (K * K - 1) * norm
+  const a2 = (1 - K / q + K * K) * norm
+  const pass = (v: Float64Array, reverse: boolean) => {
+    const out = new Float64Array(v.length)
+    let x1 = v[reverse ? v.length - 1 : 0]!
+    let x2 = x1
+    let y1 = x1
+    let y2 = x1
+    for (let s = 0; s < v.length; s++) {
+      const i = reverse ? v.length - 1 - s : s
+      const xi = v[i]!
+      const o = b0 * (xi + x2) + b1 * x1 - a1 * y1 - a2 * y2
+      x2 = x1; x1 = xi; y2 = y1; y1 = o
+      out[i] = o
+    }
+    return out
+  }
+  for (let s = 0; s < sections; s++) { y = pass(y, false); y = pass(y, true) }
+  return y.subarray(pad, pad + n).slice()
 }
 
 // 25-ms points of the binned track for charts.

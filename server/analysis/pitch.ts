@@ -196,8 +196,11 @@ export function refinePitch (pyr: Pyramid, startS: number, endS: number, refHz: 
   const r = pyr.rate(level)
   const x = pyr.level(level)
   const P = r / refHz
-  const M = Math.max(4, Math.round(1.5 * P)) // frame of 2M+1 ≈ 3 periods
-  const H = Math.max(1, Math.round(1.5 * P)) // hop of 1.5 periods: each harmonic may stray ±f/(3k) between frames
+  // Frames of 2M+1 ≈ 3 periods (at least 6 ms, so high notes do not make thousands of frames a
+  // second), hop M: between frames harmonic k may stray ±r/(2Hk) from the prediction.
+  const span = Math.max(1.5 * P, 0.003 * r)
+  const M = Math.max(4, Math.round(span))
+  const H = Math.max(1, Math.round(span))
   const first = Math.max(M, Math.ceil(startS * r) + M)
   const last = Math.min(x.length - 1 - M, Math.floor(endS * r) - M)
   const nF = last >= first ? Math.floor((last - first) / H) + 1 : 0
@@ -402,9 +405,11 @@ export function refinePitch (pyr: Pyramid, startS: number, endS: number, refHz: 
     }
   }
 
-  // Pass A: low harmonics against the reference frequency (they tolerate the largest error).
+  // Pass A: low harmonics against the reference frequency (they tolerate the largest error):
+  // those whose unambiguous range ±r/(2Hk) spans at least ±10 % of f (±165 ¢).
+  const kA = Math.max(1, Math.min(K, 4, Math.floor(r / (2 * H * refHz * 0.1))))
   const fA = new Float64Array(lag1.n)
-  combine(lag1, Math.min(K, 4), () => refHz, fA, null, false)
+  combine(lag1, kA, () => refHz, fA, null, false)
   const fAs = smoothMedian(fA, 5, refHz)
   // Pass B: all clean harmonics against pass A.
   selectHarmonics(lag1, m => fAs[m]!)
@@ -415,22 +420,28 @@ export function refinePitch (pyr: Pyramid, startS: number, endS: number, refHz: 
   const cumB = new Float64Array(lag1.n + 1)
   for (let m = 0; m < lag1.n; m++) cumB[m + 1] = cumB[m]! + fBs[m]!
   const predL = (m: number) => (cumB[Math.min(lag1.n, m + L)]! - cumB[m]!) / (Math.min(lag1.n, m + L) - m)
-  const nI = lagL.n
-  const hz = new Float64Array(nI).fill(NaN)
-  const varHz = new Float64Array(nI).fill(Infinity)
   selectHarmonics(lagL, predL)
-  const fC = new Float64Array(nI)
+  const fC = new Float64Array(lagL.n)
   combine(lagL, K, predL, fC, null, true)
   estimateNoise(lagL, predL, fC)
-  combine(lagL, K, predL, hz, varHz, true)
+  const fD = new Float64Array(lagL.n)
+  const vD = new Float64Array(lagL.n)
+  combine(lagL, K, predL, fD, vD, true)
+  // Output: every lag-L span (consecutive spans overlap; the mean over the track still
+  // telescopes, to L end-point phases at each end).
+  const nI = lagL.n
   const times = new Float64Array(nI)
+  const hz = new Float64Array(nI)
+  const varHz = new Float64Array(nI)
   const levelI = new Float64Array(nI)
+  const harmonicity = lagL.harm
   for (let m = 0; m < nI; m++) {
     times[m] = (first + m * H + L * H / 2) / r
     levelI[m] = Math.min(frameLevel[m]!, frameLevel[m + L]!)
-    if (!(hz[m]! > 0) || !Number.isFinite(hz[m]!)) { hz[m] = NaN; varHz[m] = Infinity }
+    const f = fD[m]!
+    hz[m] = f > 0 && Number.isFinite(f) ? f : NaN
+    varHz[m] = f > 0 && Number.isFinite(f) ? vD[m]! : Infinity
   }
-  const harmonicity = lagL.harm
 
   return {
     times,
@@ -453,13 +464,19 @@ function smoothMedian (a: Float64Array, width: number, fallback: number): Float6
   const n = a.length
   const out = new Float64Array(n)
   const h = width >> 1
-  const buf: number[] = []
+  const buf = new Float64Array(width)
   for (let i = 0; i < n; i++) {
-    buf.length = 0
-    for (let j = Math.max(0, i - h); j <= Math.min(n - 1, i + h); j++) if (Number.isFinite(a[j]!)) buf.push(a[j]!)
-    if (buf.length === 0) { out[i] = i > 0 ? out[i - 1]! : fallback; continue }
-    buf.sort((p, q) => p - q)
-    out[i] = buf[buf.length >> 1]!
+    let k = 0
+    const hiJ = Math.min(n - 1, i + h)
+    for (let j = Math.max(0, i - h); j <= hiJ; j++) {
+      const v = a[j]!
+      if (!(v === v)) continue
+      // Insertion into the small sorted buffer.
+      let p = k++
+      while (p > 0 && buf[p - 1]! > v) { buf[p] = buf[p - 1]!; p-- }
+      buf[p] = v
+    }
+    out[i] = k === 0 ? (i > 0 ? out[i - 1]! : fallback) : buf[k >> 1]!
   }
   return out
 }

@@ -2,6 +2,17 @@
 // SameSite=Lax, and this closes the remaining gap (form posts from another site).
 const SAFE = new Set(['GET', 'HEAD', 'OPTIONS'])
 
+function originAllowed (origin: string, host: string, baseUrl: string): boolean {
+  try {
+    const o = new URL(origin)
+    if (o.host === host) return true
+    // Behind a proxy the Host header may be internal; the public address is baseUrl.
+    return baseUrl ? o.origin === new URL(baseUrl).origin : false
+  } catch {
+    return false
+  }
+}
+
 export default defineEventHandler((event) => {
   setResponseHeaders(event, {
     'X-Content-Type-Options': 'nosniff',
@@ -11,15 +22,7 @@ export default defineEventHandler((event) => {
   if (SAFE.has(event.method) || !event.path.startsWith('/api/')) return
   const site = getRequestHeader(event, 'sec-fetch-site')
   const origin = getRequestHeader(event, 'origin')
-  let crossSite = site === 'cross-site'
-  if (!crossSite && origin && origin !== 'null') {
-    try {
-      crossSite = new URL(origin).host !== getRequestHost(event, { xForwardedHost: false })
-    } catch {
-      crossSite = true
-    }
-  } else if (origin === 'null') {
-    crossSite = true
-  }
+  const crossSite = site === 'cross-site'
+    || (origin != null && !originAllowed(origin, getRequestHost(event, { xForwardedHost: false }), String(useRuntimeConfig().baseUrl || '')))
   if (crossSite) throw apiError(403, 'cross_site', 'Cross-site request refused')
 })

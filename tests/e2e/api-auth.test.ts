@@ -185,3 +185,16 @@ describe('per-address sign-in limit', () => {
     expect(Number(r.headers.get('retry-after'))).toBeGreaterThan(0)
   })
 })
+
+describe('cross-site writes', () => {
+  it('refuses a sign-in posted from another site, and accepts the app\'s own origin', async () => {
+    const body = { email: 'nobody@example.org', password: 'x' }
+    const other = await app.fetch('/api/auth/login', { ...json(body), headers: { 'content-type': 'application/json', origin: 'https://elsewhere.example.org' } })
+    expect(other.status).toBe(403)
+    expect((await errorOf(other)).data?.code).toBe('cross_site')
+    const fetchMeta = await app.fetch('/api/auth/login', { ...json(body), headers: { 'content-type': 'application/json', 'sec-fetch-site': 'cross-site' } })
+    expect(fetchMeta.status).toBe(403)
+    const own = await app.fetch('/api/auth/login', { ...json(body), headers: { 'content-type': 'application/json', origin: app.url } })
+    expect(own.status).toBe(401)
+  })
+})

@@ -15,8 +15,10 @@ const base: HomeData = {
   ensembleSummary: [],
 }
 let answer: HomeData | 'fail' = base
+let delayMs = 0
 
-registerEndpoint('/api/home', () => {
+registerEndpoint('/api/home', async () => {
+  if (delayMs) await new Promise(r => setTimeout(r, delayMs))
   if (answer === 'fail') throw createError({ statusCode: 503, statusMessage: 'Database unavailable' })
   return answer
 })
@@ -33,6 +35,22 @@ async function mountHome(data: HomeData | 'fail') {
 }
 
 describe('home page', () => {
+  it('shows a loading skeleton, announced politely, until the data arrives', async () => {
+    answer = base
+    delayMs = 300
+    clearNuxtData('home')
+    try {
+      const w = await mountSuspended(HomePage)
+      const status = w.get('[role="status"]')
+      expect(status.text()).toContain('Loading your home page')
+      await vi.waitFor(() => {
+        if (!w.text().includes('You are not in an ensemble yet')) throw new Error('still loading')
+      }, { timeout: 5000, interval: 20 })
+    } finally {
+      delayMs = 0
+    }
+  })
+
   it('explains what to do when the user is in no ensemble', async () => {
     const w = await mountHome(base)
     expect(w.text()).toContain('Welcome back, Rowan Test')
