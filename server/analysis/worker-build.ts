@@ -19,8 +19,9 @@ export async function buildAnalysisWorker (rootDir: string, outFile: string): Pr
     target: 'node20',
     // An optional decoder of the @audio family that is not installed (APE files are not taken).
     external: ['@audio/decode-ape'],
-    // CommonJS dependencies call require(); give the ES module bundle one.
-    banner: { js: "import { createRequire as __cr } from 'module'; const require = __cr(import.meta.url);" },
+    // CommonJS dependencies call require(); give the ES module bundle one. (Spelled in pieces:
+    // the development server rewrites every literal "import" + ".meta" in the code it loads.)
+    banner: { js: `import { createRequire as __cr } from 'module'; const require = __cr(${['import', 'meta', 'url'].join('.')});` },
     logLevel: 'warning',
     legalComments: 'none',
     plugins: [{

@@ -68,6 +68,8 @@ interface Slot {
   worker: Worker | null
   ready: Promise<void> | null
   running: Running | null
+  /** Workers in a row that died before they were ready (a broken bundle): backs off the restarts. */
+  failedStarts: number
 }
 
 const PROGRESS_WRITE_MS = 500
@@ -108,7 +110,7 @@ export class AnalysisPool {
     await this.reconcile(db)
     if (requeued || failed) console.info(`[analysis] ${requeued} interrupted job(s) back in the queue, ${failed} given up`)
     for (let i = 0; i < Math.max(1, this.o.workers); i++) {
-      const slot: Slot = { index: i, lockId: `${this.tag}:${i}`, worker: null, ready: null, running: null }
+      const slot: Slot = { index: i, lockId: `${this.tag}:${i}`, worker: null, ready: null, running: null, failedStarts: 0 }
       this.slots.push(slot)
       this.spawn(slot)
     }
@@ -148,23 +150,27 @@ export class AnalysisPool {
   private spawn (slot: Slot) {
     const worker = new Worker(this.o.workerFile, { name: `analysis-${slot.index}` })
     slot.worker = worker
+    let ready = false
     slot.ready = new Promise((ok) => {
-      const onMsg = (m: WorkerMessage) => { if (m?.type === 'ready') { worker.off('message', onMsg); ok() } }
+      const onMsg = (m: WorkerMessage) => { if (m?.type === 'ready') { ready = true; slot.failedStarts = 0; worker.off('message', onMsg); ok() } }
       worker.on('message', onMsg)
       worker.once('exit', () => ok()) // a worker that never got ready: run() sees it gone
     })
     worker.on('message', (m: WorkerMessage) => this.onMessage(slot, m))
     worker.on('error', (err: Error) => {
-      console.error(`[analysis] worker ${slot.index} failed: ${err.message}`)
+      if (slot.failedStarts < 3) console.error(`[analysis] worker ${slot.index} failed: ${err.message}`)
     })
     worker.on('exit', (code) => {
       if (slot.worker !== worker) return
       slot.worker = null
       const r = slot.running
       if (r) r.resolve({ type: 'error', jobId: r.job.id, analysis: false, code: 'worker_exit', message: `worker stopped (exit code ${code})` })
+      if (!ready) slot.failedStarts++
       if (!this.stopping) {
-        // A worker that dies at once (a broken bundle) must not spin: wait a little before the next.
-        setTimeout(() => { if (!this.stopping) { this.spawn(slot); this.wake() } }, r ? 200 : 2000).unref?.()
+        // A worker that dies at once (a broken bundle) must not spin: back off up to a minute.
+        const delay = ready ? 200 : Math.min(60_000, 1000 * 2 ** slot.failedStarts)
+        if (slot.failedStarts === 3) console.error(`[analysis] worker ${slot.index} keeps failing at start; retrying every ${Math.round(delay / 1000)} s or more`)
+        setTimeout(() => { if (!this.stopping) { this.spawn(slot); this.wake() } }, delay).unref?.()
       }
     })
   }
