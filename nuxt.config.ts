@@ -93,8 +93,9 @@ export default defineNuxtConfig({
       },
     },
   },
+  // Keep the development server and its hot-reload socket on loopback.
   vite: {
-    server: { host: 'localhost' },
+    server: { hmr: { host: 'localhost' } },
   },
   devServer: { host: 'localhost', port: 3000 },
 })

@@ -14,8 +14,8 @@ Run "driftline <command> --help" for the options of a command.
 `
 
 const COMMANDS: Record<string, () => Promise<{ run: (argv: string[], io: CliIo) => Promise<number> }>> = {
-  targets: () => import('./targets.ts'),
-  analyze: () => import('./analyze.ts'),
+  targets: () => import('./targets'),
+  analyze: () => import('./analyze'),
 }
 
 /** Runs one command and returns the process exit code. */
