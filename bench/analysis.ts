@@ -325,6 +325,12 @@ async function main () {
     console.log(r.map((cell, c) => cell.padEnd(widths[c]!)).join(' | ').trimEnd())
     if (i === 0) console.log(widths.map(w => '-'.repeat(w)).join('-|-'))
   }
+  const worst = rows.engine.filter(r => r.err !== null && r.truth.vibratoCents === 0).sort((p, q) => Math.abs(q.err!) - Math.abs(p.err!)).slice(0, 5)
+  console.log('\nLargest engine errors without vibrato (take, frequency, SNR, wobble → error):')
+  for (const r of worst) console.log(`  take ${r.truth.takeId}: ${r.truth.hz.toFixed(2)} Hz, SNR ${r.truth.snrDb} dB, ${r.truth.wobble ? 'wobble + drift' : 'steady'} → ${sgn(r.err!, 3)} ¢`)
+  const worstVib = rows.engine.filter(r => r.err !== null && r.truth.vibratoCents > 0).sort((p, q) => Math.abs(q.err!) - Math.abs(p.err!)).slice(0, 5)
+  console.log('Largest engine errors with vibrato (take, frequency, SNR, extent → error):')
+  for (const r of worstVib) console.log(`  take ${r.truth.takeId}: ${r.truth.hz.toFixed(2)} Hz, SNR ${r.truth.snrDb} dB, ±${r.truth.vibratoCents.toFixed(0)} ¢${r.truth.wobble ? ', wobble + drift' : ''} → ${sgn(r.err!, 3)} ¢`)
   const missed = [...rows.engine, ...sweep.rows.engine].filter(r => r.err === null || Math.abs(r.err) > 50)
   if (missed.length) {
     console.log('\nEngine holds not found or grossly wrong:')

@@ -167,7 +167,7 @@ export function alignHolds (tracks: CoarseTrack[], holds: ExpectedHold[], opts: 
     const m = mapped[i]!
     const nExp = Math.max(1, m.b - m.a)
     // Room to move: enough for one chord skipped or doubled, at least 2 s.
-    const slack = Math.max(2 * ub, 0.9 * nExp)
+    const slack = Math.max(2 * ub, 1.1 * nExp)
     const aMin = Math.max(0, Math.floor(m.a - slack))
     const aMax = Math.min(U, Math.ceil(m.a + slack))
     const Lmin = Math.max(2, Math.round(Math.max(0.12 * ub, 0.25 * nExp)))

@@ -8,7 +8,7 @@
 // - A steady centre more than 350 ¢ from the expected note is a wrong note: "not found"
 //   (wrong_note) with the distance in the reason, not a huge deviation.
 // - Steady part: the main plateau of the hold (within 100 ¢ of its median), attack trimmed by
-//   12 % of its length (0.12–0.3 s) and release by 6 % (0.08–0.2 s), then extended past any
+//   12 % of its length (0.18–0.3 s) and release by 6 % (0.08–0.2 s), then extended past any
 //   settling transient still visible (smoothed residual > max(4 ¢, 3 SD)), at most 0.4 s more.
 //   Short holds get shorter trims (≥ 50 / 40 ms); 0.15 s of steady sound is the minimum,
 //   otherwise too_short.
@@ -466,7 +466,9 @@ function measureHold (pyr: Pyramid, track: CoarseTrack, h: ExpectedHold, startS:
   }
   if (runLo < 0) return notFound(h, startS, endS, 'no_pitch', `No steady pitch near ${noteWord(h)} where this chord should be`)
   const plateauS = (runHi - runLo + 1) * BIN_S
-  let trimA = Math.min(0.3, Math.max(0.12, 0.12 * plateauS))
+  // The settling transient of a real attack lasts 0.1–0.2 s: start the steady part ≥ 0.18 s
+  // after the plateau begins (which is itself a few tens of ms after the onset).
+  let trimA = Math.min(0.3, Math.max(0.18, 0.12 * plateauS))
   let trimR = Math.min(0.2, Math.max(0.08, 0.06 * plateauS))
   // Short holds: shrink both trims (to no less than 50 and 40 ms) so that MIN_STEADY_S remains.
   if (plateauS - trimA - trimR < MIN_STEADY_S) {

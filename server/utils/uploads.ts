@@ -135,6 +135,11 @@ export async function receiveUpload (event: H3Event, store: UploadStore, opts: U
       p.abort(err instanceof Error ? err : new Error(String(err)))
       await p.done.catch(() => {})
     }
+    // The file may have been complete before the form failed (a bad part after it), or its last
+    // write may have reached the store as the abort went out: delete the key either way (a
+    // delete of a missing key is a no-op in S3).
+    const key = (pending as { key: string } | null)?.key
+    if (key && (stored || p)) await store.delete(key).catch(e => console.warn(`[uploads] could not delete ${key}: ${(e as Error).message}`))
     throw toHttpError(event, err, opts)
   }
   const file = stored as StoredUpload | null
@@ -189,7 +194,8 @@ function storeWritable (store: UploadStore, key: string, onStored: (format: Audi
     format = sniffed
     body = new PassThrough({ highWaterMark: 1024 * 1024 })
     upload = store.put(key, body, { contentType: AUDIO_MIME[sniffed], abortSignal: controller.signal })
-    upload.catch(() => {}) // awaited in final()
+    // The store failing mid-way must stop the request too (else the body would wait on it forever).
+    upload.catch((e: Error) => { if (!writable.destroyed) writable.destroy(storeDown(e)) })
     body.write(bytes)
     head = []
     return null
@@ -217,8 +223,9 @@ function storeWritable (store: UploadStore, key: string, onStored: (format: Audi
         settle()
         cb()
       }, (e: Error) => {
-        settle(e)
-        cb(e)
+        const err = storeDown(e)
+        settle(err)
+        cb(err)
       })
     },
     destroy (err, cb) {
@@ -236,6 +243,12 @@ function storeWritable (store: UploadStore, key: string, onStored: (format: Audi
     done,
     abort: (why: Error) => { if (!writable.destroyed) writable.destroy(why) },
   }
+}
+
+function storeDown (e: Error): Error {
+  if (e instanceof UploadRefused) return e
+  console.error(`[uploads] object store refused the upload: ${e?.message ?? String(e)}`)
+  return new UploadRefused(503, 'storage_unavailable', 'Storage unavailable')
 }
 
 function toHttpError (event: H3Event, err: unknown, opts: UploadOptions) {

@@ -97,6 +97,12 @@ describe('a WAV take', () => {
     expect(report.holds.map((h: any) => h.member)).toEqual(['root', 'third', 'fifth'])
   })
 
+  it('keeps the original under an opaque key, never one made from the file name', () => {
+    const [t] = dbQuery(app, 'select object_key, original_name, bytes, mime from takes where id = ?', takeId)
+    expect(t.object_key).toMatch(/^takes\/[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/)
+    expect(t).toMatchObject({ original_name: 'my take.wav', bytes: wav.length, mime: 'audio/wav' })
+  })
+
   it('stores the analysis, one row per hold, and the job as done', () => {
     const [a] = dbQuery(app, 'select * from analyses where take_id = ? and is_current = 1', takeId)
     expect(a.system_name).toBe('equal')
@@ -301,6 +307,20 @@ describe('refused uploads', () => {
     expect(noFile.status).toBe(400)
     expect(((await noFile.json()) as any).data.code).toBe('missing_file')
     expect((await postTake(app, '', { drillId, part: 'Soprano', audio: wav })).status).toBe(401)
+  })
+
+  it('a second file after the audio → 400, and the stored audio is removed again', async () => {
+    const before = [count(), storedObjects(app).length]
+    const { wav } = triadTake([0, 0, 0])
+    const form = new FormData()
+    form.append('drillId', String(drillId))
+    form.append('part', 'Soprano')
+    form.append('audio', new Blob([new Uint8Array(wav)]), 'take.wav')
+    form.append('extra', new Blob(['more']), 'extra.txt')
+    const r = await app.fetch('/api/takes', { method: 'POST', body: form, cookie: clara })
+    expect(r.status).toBe(400)
+    expect(['too_many_files', 'unexpected_file']).toContain(((await r.json()) as any).data.code)
+    expect([count(), storedObjects(app).length]).toEqual(before)
   })
 
   it('an empty file → 422 empty', async () => {

@@ -175,7 +175,7 @@ export function serverPid (app: App): number {
  * Sends a multipart upload by hand and cuts the connection after `sendBytes` of the body
  * (the Content-Length header announces the whole body). Resolves when the socket is closed.
  */
-export function cutOffUpload (app: App, cookie: string, fields: Record<string, string>, file: { bytes: Uint8Array, name: string }, sendBytes: number, opts: { chunked?: boolean } = {}): Promise<void> {
+export function cutOffUpload (app: App, cookie: string, fields: Record<string, string>, file: { bytes: Uint8Array, name: string }, sendBytes: number, opts: { chunked?: boolean, cutWhen?: () => boolean } = {}): Promise<void> {
   const boundary = `----driftline-e2e-${Date.now()}`
   const head = Object.entries(fields).map(([k, v]) => `--${boundary}\r\nContent-Disposition: form-data; name="${k}"\r\n\r\n${v}\r\n`).join('') +
     `--${boundary}\r\nContent-Disposition: form-data; name="audio"; filename="${file.name}"\r\nContent-Type: application/octet-stream\r\n\r\n`
@@ -203,8 +203,14 @@ export function cutOffUpload (app: App, cookie: string, fields: Record<string, s
         sent += n
         if (!ok) { req.once('drain', pump); return }
       }
-      // Give the server a moment to take in what was sent (and start storing it), then cut.
-      setTimeout(() => req.destroy(), 400)
+      // Give the server time to take in what was sent (and, when asked, to reach a given
+      // point such as starting its multipart upload), then cut.
+      const until = Date.now() + 15_000
+      const wait = () => {
+        if (!opts.cutWhen || opts.cutWhen() || Date.now() > until) req.destroy()
+        else setTimeout(wait, 50)
+      }
+      setTimeout(wait, 400)
     }
     pump()
   })
