@@ -12,11 +12,19 @@
 //   settling transient still visible (smoothed residual > max(4 ¢, 3 SD)), at most 0.4 s more.
 //   Short holds get shorter trims (≥ 50 / 40 ms); 0.15 s of steady sound is the minimum,
 //   otherwise too_short.
+// - Spread: RMS about the centre of the pitch averaged over one vibrato period (0.2 s without
+//   vibrato), trend included: how unsteady the hold is, vibrato and noise excluded.
 // - Centre: robust (Huber) regression of the cents track on a constant, a linear trend and, when
 //   vibrato is found, a sinusoid at its rate, over a whole number of vibrato cycles; the
 //   constant at the window centre is the hold centre (= mean log-frequency of the steady part).
+// - Confidence (0–1) = usable share (steady length against half the chord, full from 50 %)
+//   × harmonicity ((h − 0.5)/0.4, clamped) × 1/(1 + (spread/15 ¢)²) × 1/(1 + (SE/1 ¢)²)
+//   × length (full from 0.4 s) × 0.9 when clipping was seen.
 // - Clipping: more than 5 % of the sounding samples at full scale is an error ('clipped': the
 //   recording level was far too high); 0.1–5 % is a warning and lowers confidence slightly.
+// - Digital silence (peak below −80 dBFS) or no pitched frame anywhere → 'silent'; sound but
+//   not one hold found nor any octave/wrong-note finding → 'no_holds'; a part that only rests →
+//   'no_holds'.
 import { AnalysisError } from './errors'
 import type { DecodedAudio } from './decode'
 import { Pyramid, median, quantile } from './dsp'
@@ -372,7 +380,10 @@ function findVibrato (b: Binned, fit: Fit, lo: number, hi: number): { rateHz: nu
   for (let i = 1; i < amps.length; i++) if (amps[i]! > amps[best]!) best = i
   if (best === 0 || best === amps.length - 1) return null
   const floor = median(amps)
-  if (!(amps[best]! >= 1.5) || !(amps[best]! > 3 * floor)) return null
+  // A clear peak, or on short windows (few cycles, so a broad peak) a large one.
+  const clear = amps[best]! >= 1.5 && amps[best]! > 3 * floor
+  const large = amps[best]! >= 5 && amps[best]! > 1.5 * floor
+  if (!clear && !large) return null
   // Finer look around the peak, then a parabola through the best three.
   let rate = rates[best]!
   let amp = amps[best]!
@@ -380,7 +391,7 @@ function findVibrato (b: Binned, fit: Fit, lo: number, hi: number): { rateHz: nu
     const a = ampAt(nu)
     if (a > amp) { amp = a; rate = nu }
   }
-  if (T * rate < 1.5) return null
+  if (T * rate < 1) return null
   const y0 = ampAt(rate - 0.02) ** 2
   const y1 = amp ** 2
   const y2 = ampAt(rate + 0.02) ** 2
@@ -531,48 +542,70 @@ function measureHold (pyr: Pyramid, track: CoarseTrack, h: ExpectedHold, startS:
     return notFound(h, startS, endS, 'wrong_note', `Heard a pitch about ${semis} semitone${semis === 1 ? '' : 's'} ${centre > 0 ? 'above' : 'below'} ${noteWord(h)}`)
   }
 
-  // Decompose the steady residual e = c − centre − trend (gaps interpolated) into a slow part
-  // (zero-phase low-pass at 2 Hz, 8th order: wobble, wander), a vibrato band (2–12 Hz) and
-  // faster noise. Real vibrato wanders in rate and depth, so its extent is taken from the band's
-  // RMS (·√2), not from the single fitted sinusoid.
+  // The steady residual e = c − centre − trend (gaps interpolated), split by a moving average
+  // over one vibrato period (or 0.2 s without vibrato): its nulls fall on the vibrato rate and
+  // harmonics, so the average keeps the slow wander and drops the vibrato even when its rate
+  // and depth wander; e minus the average is the vibrato (plus a little noise). Only the
+  // stretch where the whole average fits is used.
   const m0 = hi - lo + 1
   const e = new Float64Array(m0)
   {
-    let last = NaN
     for (let k = lo; k <= hi; k++) {
       const v = bins.c[k]!
       e[k - lo] = Number.isFinite(v) ? v - centre - fit.slope * (bins.t[k]! - fit.tMid) : NaN
     }
-    // Linear interpolation over gaps (ends held).
     let prevIdx = -1
     for (let q = 0; q < m0; q++) {
       if (!Number.isFinite(e[q]!)) continue
       if (prevIdx < 0) for (let z = 0; z < q; z++) e[z] = e[q]!
       else for (let z = prevIdx + 1; z < q; z++) e[z] = e[prevIdx]! + (e[q]! - e[prevIdx]!) * (z - prevIdx) / (q - prevIdx)
       prevIdx = q
-      last = e[q]!
     }
-    for (let z = prevIdx + 1; z < m0; z++) e[z] = Number.isFinite(last) ? last : 0
+    for (let z = prevIdx + 1; z < m0; z++) e[z] = prevIdx >= 0 ? e[prevIdx]! : 0
   }
-  const slow = filtfilt(e, 1 / BIN_S, 2, 2)
-  const fast = filtfilt(e, 1 / BIN_S, 12, 1)
-  // Spread: SD about the centre of the slow part plus the trend (vibrato and noise excluded).
-  let s2 = 0
-  for (let q = 0; q < m0; q++) {
-    const v = slow[q]! + fit.slope * (bins.t[lo + q]! - fit.tMid)
-    s2 += v * v
+  const period = fit.vib ? Math.max(3, Math.round(2 * Math.PI / fit.vib.omega / BIN_S)) : Math.round(0.2 / BIN_S)
+  const halfP = period >> 1
+  const vLo = halfP
+  const vHi = m0 - 1 - halfP
+  const slow = new Float64Array(m0).fill(NaN)
+  let spread = 0
+  let vibRms = NaN
+  if (vHi >= vLo) {
+    const cum = new Float64Array(m0 + 1)
+    for (let q = 0; q < m0; q++) cum[q + 1] = cum[q]! + e[q]!
+    let s2 = 0
+    let v2 = 0
+    for (let q = vLo; q <= vHi; q++) {
+      slow[q] = (cum[q + halfP + 1]! - cum[q - halfP]!) / (2 * halfP + 1)
+      const w = slow[q]! + fit.slope * (bins.t[lo + q]! - fit.tMid)
+      s2 += w * w
+      const v = e[q]! - slow[q]!
+      v2 += v * v
+    }
+    spread = Math.sqrt(s2 / (vHi - vLo + 1))
+    vibRms = Math.sqrt(v2 / (vHi - vLo + 1))
+  } else {
+    // Shorter than one period: the fitted sinusoid stands in for the vibrato.
+    let s2 = 0
+    for (let q = 0; q < m0; q++) {
+      let v = e[q]! + fit.slope * (bins.t[lo + q]! - fit.tMid)
+      if (fit.vib) { const d = bins.t[lo + q]! - fit.tMid; v -= fit.vib.a * Math.cos(fit.vib.omega * d) + fit.vib.b * Math.sin(fit.vib.omega * d) }
+      s2 += v * v
+    }
+    spread = Math.sqrt(s2 / m0)
   }
-  const spread = m0 > 0 ? Math.sqrt(s2 / m0) : 0
-  // Standard error of the centre from the means of four blocks of the residual without the
-  // vibrato band (approximate: the blocks are treated as independent).
-  const blocks = 4
+  // Standard error of the centre from the means of four blocks of the slow part (approximate:
+  // the blocks are treated as independent).
   const bm: number[] = []
-  const per = Math.floor(m0 / blocks)
-  for (let q = 0; q < blocks; q++) {
-    let sb = 0
-    let c = 0
-    for (let z = q * per; z < (q + 1) * per; z++) { sb += e[z]! - (fast[z]! - slow[z]!); c++ }
-    if (c > 0) bm.push(sb / c)
+  {
+    const validLo = vHi >= vLo ? vLo : 0
+    const validN = vHi >= vLo ? vHi - vLo + 1 : m0
+    const per = Math.floor(validN / 4)
+    for (let q = 0; q < 4 && per > 0; q++) {
+      let sb = 0
+      for (let z = validLo + q * per; z < validLo + (q + 1) * per; z++) sb += Number.isFinite(slow[z]!) ? slow[z]! : e[z]!
+      bm.push(sb / per)
+    }
   }
   const se = bm.length >= 2 ? Math.sqrt(bm.reduce((acc, v) => acc + v * v, 0) / (bm.length * (bm.length - 1))) : 1
   let hSum = 0
@@ -584,12 +617,8 @@ function measureHold (pyr: Pyramid, track: CoarseTrack, h: ExpectedHold, startS:
   if (fit.vib) {
     const rateHz = fit.vib.omega / (2 * Math.PI)
     const g = Math.max(0.3, vibratoGain(rateHz, tr))
-    // RMS of the vibrato band away from the filter's edges; a sinusoid's peak is √2·RMS.
-    const edge = Math.min(Math.round(0.1 / BIN_S), Math.floor(m0 / 4))
-    let v2 = 0
-    let nv = 0
-    for (let q = edge; q < m0 - edge; q++) { const v = fast[q]! - slow[q]!; v2 += v * v; nv++ }
-    const extent = nv > 0 ? Math.SQRT2 * Math.sqrt(v2 / nv) : Math.hypot(fit.vib.a, fit.vib.b)
+    // A sinusoid's peak is √2·RMS; below one period, the fitted sinusoid's amplitude.
+    const extent = Number.isFinite(vibRms) ? Math.SQRT2 * vibRms : Math.hypot(fit.vib.a, fit.vib.b)
     vibrato = { rateHz: round(rateHz, 2), extentCents: round(extent / g, 1) }
   }
   const usable = Math.min(1, steadyS / Math.max(0.4, 0.5 * expectedDur))
@@ -620,44 +649,6 @@ function measureHold (pyr: Pyramid, track: CoarseTrack, h: ExpectedHold, startS:
   }
   if (withTrace) out.trace = makeTrace(bins, h.expectedHz)
   return out
-}
-
-// Zero-phase Butterworth low-pass (bilinear biquads run forward and backward; `sections`
-// biquads each way), with 0.5 s of mirrored padding against edge transients.
-function filtfilt (x: Float64Array, rate: number, cutoff: number, sections: number): Float64Array {
-  const n = x.length
-  if (n === 0) return new Float64Array(0)
-  const pad = Math.min(n - 1, Math.round(0.5 * rate))
-  const m = n + 2 * pad
-  let y = new Float64Array(m)
-  for (let i = 0; i < m; i++) {
-    const j = i - pad
-    y[i] = j < 0 ? 2 * x[0]! - x[-j]! : j >= n ? 2 * x[n - 1]! - x[2 * (n - 1) - j]! : x[j]!
-  }
-  const K = Math.tan(Math.PI * Math.min(cutoff, 0.45 * rate) / rate)
-  const q = Math.SQRT1_2
-  const norm = 1 / (1 + K / q + K * K)
-  const b0 = K * K * norm
-  const b1 = 2 * b0
-  const a1 = 2 * (K * K - 1) * norm
-  const a2 = (1 - K / q + K * K) * norm
-  const pass = (v: Float64Array, reverse: boolean) => {
-    const out = new Float64Array(v.length)
-    let x1 = v[reverse ? v.length - 1 : 0]!
-    let x2 = x1
-    let y1 = x1
-    let y2 = x1
-    for (let s = 0; s < v.length; s++) {
-      const i = reverse ? v.length - 1 - s : s
-      const xi = v[i]!
-      const o = b0 * (xi + x2) + b1 * x1 - a1 * y1 - a2 * y2
-      x2 = x1; x1 = xi; y2 = y1; y1 = o
-      out[i] = o
-    }
-    return out
-  }
-  for (let s = 0; s < sections; s++) { y = pass(y, false); y = pass(y, true) }
-  return y.subarray(pad, pad + n).slice()
 }
 
 // 25-ms points of the binned track for charts.

@@ -30,12 +30,13 @@ export interface MeasuredHold {
   endS: number
   /** Steady-state frequency (attack and release trimmed, vibrato averaged), or null when not found. */
   detectedHz: number | null
-  /** SD of the steady pitch about its centre with vibrato removed (smoothed over 50 ms), cents. */
+  /** RMS about the centre of the steady pitch averaged over one vibrato period (0.2 s without vibrato), trend included, cents. */
   spreadCents: number | null
   /** Linear trend of the pitch within the steady part, cents per second. */
   slopeCentsPerS: number | null
   /** 0–1: how much the number can be trusted (usable share, harmonicity, spread, precision, length). */
   confidence: number
+  /** Vibrato rate (Hz) and extent (peak deviation from the centre, cents), or null when none. */
   vibrato: { rateHz: number, extentCents: number } | null
   reason: string | null
   reasonCode: HoldReasonCode | null
@@ -44,7 +45,7 @@ export interface MeasuredHold {
   /** The stretch the centre was measured over. */
   steadyStartS: number | null
   steadyEndS: number | null
-  /** Standard error of the centre, cents (approximate: from block means of the residual). */
+  /** Standard error of the centre, cents (approximate: from four block means of the slow residual). */
   centreErrorCents: number | null
   /** Decimated f0 track over the hold for charts: [seconds, Hz]. */
   trace?: Array<[number, number]>
