@@ -93,9 +93,14 @@ export default defineNuxtConfig({
       },
     },
   },
-  // Keep the development server and its hot-reload socket on loopback.
-  vite: {
-    server: { hmr: { host: 'localhost' } },
+  hooks: {
+    // Keep the development hot-reload socket on loopback like the rest of the product.
+    // The server-side Vite has hot reload off but would still open a socket on every interface.
+    'vite:extendConfig'(config) {
+      const server = (config.server ??= {}) as { hmr?: unknown, ws?: false }
+      if (server.hmr === false) server.ws = false
+      else server.hmr = { ...(typeof server.hmr === 'object' ? server.hmr : {}), host: 'localhost' }
+    },
   },
   devServer: { host: 'localhost', port: 3000 },
 })
