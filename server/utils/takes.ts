@@ -237,9 +237,10 @@ export async function takeDetail (db: Knex, a: TakeAccess) {
       this.on('an.take_id', '=', 't.id').andOn('an.is_current', '=', db.raw('1'))
     })
     .where({ 't.user_id': t.userId, 't.drill_id': t.drillId, 't.part': t.part })
-    .where('t.id', '<', t.id)
+    // Earlier by the time it was sent (ids need not follow it: imports and the demo seed backdate takes).
+    .where(q => q.where('t.created_at', '<', t.createdAt).orWhere(q2 => q2.where('t.created_at', '=', t.createdAt).andWhere('t.id', '<', t.id)))
     .modify((q) => { if (!a.isOwner && !a.isDirector) q.whereNull('t.withdrawn_at') })
-    .orderBy('t.id', 'desc').limit(20)
+    .orderBy([{ column: 't.created_at', order: 'desc' }, { column: 't.id', order: 'desc' }]).limit(20)
     .select('t.id', 't.created_at', 'an.mean_abs_cents', 'an.within_tolerance_share')
   const report = analysis?.report ? JSON.parse(analysis.report) : null
   return {
