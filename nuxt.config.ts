@@ -97,7 +97,8 @@ export default defineNuxtConfig({
     // Keep the development hot-reload socket on loopback like the rest of the product.
     // The server-side Vite has hot reload off but would still open a socket on every interface.
     'vite:extendConfig'(config) {
-      const server = (config.server ??= {}) as { hmr?: unknown, ws?: false }
+      const server = config.server as { hmr?: unknown, ws?: false } | undefined
+      if (!server) return
       if (server.hmr === false) server.ws = false
       else server.hmr = { ...(typeof server.hmr === 'object' ? server.hmr : {}), host: 'localhost' }
     },
