@@ -85,13 +85,6 @@ export function formatFigure(value: number | null | undefined, digits: number, u
   return unit ? `${s} ${unit}` : s
 }
 
-export const STATUS_LABELS: Record<TakeStatusName, string> = {
-  queued: 'Waiting to be analysed',
-  analysing: 'Analysing',
-  analysed: 'Analysed',
-  failed: 'Analysis failed',
-}
-
 /** What each analysis error code means to a player, and what to do about it. */
 const ERROR_HELP: Record<string, string> = {
   not_audio: 'This file is not audio Driftline can read. Send WAV, FLAC, MP3, Ogg or WebM/Opus.',
