@@ -2,9 +2,9 @@
 //
 // Run:   npx tsx scripts/make-audio-fixtures.ts
 // Needs: Debian's command-line encoders, for generating fixtures only (never used at run time):
-//          apt-get install -y flac lame vorbis-tools opus-tools mkvtoolnix
-//        (calls flac, lame, oggenc, opusenc and mkvmerge; made with flac 1.4.2, LAME 3.100,
-//        vorbis-tools 1.4.2, opus-tools 0.2 / libopus 1.3.1, mkvmerge 74.0.0 from Debian 12).
+//          apt-get install -y flac lame vorbis-tools opus-tools mkvtoolnix ffmpeg
+//        (calls flac, lame, oggenc, opusenc, mkvmerge and ffmpeg; made with flac 1.4.2, LAME 3.100,
+//        vorbis-tools 1.4.2, opus-tools 0.2 / libopus 1.3.1, mkvmerge 74.0.0, ffmpeg 5.1 from Debian 12).
 // Output: every file listed in tests/fixtures/audio/README.md, rewritten in place. WAV files come
 //         from our own encoder (server/analysis/wav.ts); compressed ones are encoded from WAV
 //         sources built the same way. Serial numbers and seeds are fixed so a re-run gives the
@@ -242,6 +242,18 @@ run('mkvmerge', ['--quiet', '--webm', '--no-date', '--deterministic', '42', '--d
   }
 }
 
+// AAC in MP4/M4A (ffmpeg's own AAC-LC encoder; its 'fast' coder, as the default one overshoots on
+// the onset of a tone). One file with the moov before the samples (+faststart), one fragmented
+// the way a browser recorder writes it (empty moov, then moof/mdat pairs every 250 ms).
+function m4a (name: string, src: string, bitrate: string, movflags: string[]) {
+  const path = join(outDir, name)
+  run('ffmpeg', ['-hide_banner', '-loglevel', 'error', '-y', '-i', src, '-map_metadata', '-1', '-fflags', '+bitexact', '-flags:a', '+bitexact',
+    '-c:a', 'aac', '-aac_coder', 'fast', '-b:a', bitrate, ...movflags, path])
+  return path
+}
+const m4aMono = m4a('aac-mono-44100-440.m4a', source('a1', 44100, 1, 440, [0.5]), '96k', ['-movflags', '+faststart'])
+m4a('aac-fragmented-stereo-48000-220.m4a', source('a2', 48000, 1, 220, [0.5, 0.3]), '128k', ['-movflags', '+frag_keyframe+empty_moov+default_base_moof', '-frag_duration', '250000'])
+
 // Files cut off at 70 % of their bytes (an upload or a recording that stopped abruptly), from
 // 2-s sources, so about 1.4 s survives: enough to be used, flagged as truncated.
 {
@@ -259,6 +271,9 @@ run('mkvmerge', ['--quiet', '--webm', '--no-date', '--deterministic', '42', '--d
   const mp32 = join(work, 't3.mp3')
   run('lame', ['--quiet', '-b', '64', source('t3', 44100, 2, 440, [0.5]), mp32])
   cut(readFileSync(mp32), 'mp3-truncated-70pct-of-2s-440.mp3')
+  const m4a2 = m4a('t4.m4a', source('t4', 44100, 2, 440, [0.5]), '96k', ['-movflags', '+faststart'])
+  cut(readFileSync(m4a2), 'aac-truncated-70pct-of-2s-440.m4a')
+  rmSync(m4a2)
   // The same 2-s recorder-style WebM with its middle third overwritten (below).
   writeFileSync(join(work, 'webm2.webm'), webm2)
 }
@@ -275,6 +290,7 @@ run('mkvmerge', ['--quiet', '--webm', '--no-date', '--deterministic', '42', '--d
   damage('mp3-mono-44100-440.mp3', 'corrupt-middle.mp3')
   damage('opus-mono-48000-440.opus', 'corrupt-middle.opus')
   damage(join(work, 'webm2.webm'), 'corrupt-middle.webm')
+  damage(m4aMono, 'corrupt-middle.m4a')
   // A file that keeps only the format's magic and then stops.
   write('corrupt-flac-header-only.flac', readFileSync(join(outDir, 'flac-mono-44100-440.flac')).subarray(0, 20))
   write('corrupt-opus-headers-only.opus', readFileSync(opusMono).subarray(0, 200))

@@ -4,11 +4,13 @@
 // the WebAssembly decoders of the @audio/decode family (libFLAC, mpg123, libvorbis). Opus is
 // demuxed here, from Ogg (pages CRC-checked, end trimmed by granule position) or from
 // WebM/Matroska (what browser recorders stream: unknown-size Segment and Clusters, no Duration,
-// no Cues), and its packets go to the libopus core of @audio/decode-opus.
+// no Cues), and its packets go to the libopus core of @audio/decode-opus. AAC in MP4/M4A (what
+// Safari's recorder writes, and phone voice memos) is checked here (ftyp, moov, the audio track's
+// codec) and demuxed and decoded by @audio/decode-mp4 with FAAD2 from @audio/decode-aac.
 
 import { AnalysisError } from './errors'
 
-export type AudioFormat = 'wav' | 'flac' | 'mp3' | 'ogg-vorbis' | 'ogg-opus' | 'webm-opus'
+export type AudioFormat = 'wav' | 'flac' | 'mp3' | 'ogg-vorbis' | 'ogg-opus' | 'webm-opus' | 'mp4-aac'
 
 export interface DecodedAudio {
   /** Mono mix: the average of all channels. */
@@ -74,6 +76,15 @@ export function detectFormat (bytes: Uint8Array): AudioFormat | null {
       return null
     }
   }
+  if (isMp4(bytes)) {
+    try {
+      const info = readMp4Info(bytes)
+      // The moov may still be on its way (or sit after the mdat): only a codec we saw rules it out.
+      return !info.track || isAacTrack(info.track) ? 'mp4-aac' : null
+    } catch {
+      return 'mp4-aac'
+    }
+  }
   const start = id3End(bytes)
   if (start > 0 && isAscii(bytes, start, 'fLaC')) return 'flac'
   if (findMpegStart(bytes, start) >= 0) return 'mp3'
@@ -89,6 +100,7 @@ export async function decodeAudio (bytes: Uint8Array, opts: DecodeOptions = {}):
   const format = detectFormat(bytes)
   if (!format) {
     explainMatroska(bytes)
+    explainMp4(bytes)
     throw new AnalysisError('not_audio')
   }
   const opusRate = opts.opusRate ?? 48000
@@ -103,6 +115,7 @@ export async function decodeAudio (bytes: Uint8Array, opts: DecodeOptions = {}):
       case 'ogg-vorbis': out = await decodeOggVorbis(bytes, limits); break
       case 'ogg-opus': out = await decodeOggOpus(bytes, limits); break
       case 'webm-opus': out = await decodeWebmOpus(bytes, limits); break
+      case 'mp4-aac': out = await decodeMp4Aac(bytes, limits); break
     }
   } catch (err) {
     if (err instanceof AnalysisError) throw err
@@ -119,6 +132,29 @@ function explainMatroska (b: Uint8Array) {
   const head = parseMatroska(b, true) // throws 'corrupt' on damage
   if (!head.track) throw new AnalysisError('corrupt', { format: 'webm-opus', reason: 'no_audio_track' })
   throw new AnalysisError('not_audio', { reason: 'codec', codec: head.track.codecId })
+}
+
+/**
+ * Duration in seconds that a WAV or FLAC header states, read from the first bytes of a file;
+ * null when the header is not (yet) complete, states no length, or the format is another.
+ */
+export function headerDurationS (head: Uint8Array): number | null {
+  try {
+    const format = detectFormat(head)
+    if (format === 'wav') {
+      const h = readWavHeader(head)
+      if (h.sizeUnknown || h.dataSize === 0) return null
+      return Math.floor(h.dataSize / h.blockAlign) / h.sampleRate
+    }
+    if (format === 'flac') {
+      const info = readFlacInfo(head)
+      if (info.totalSamples === 0 || !(info.sampleRate > 0)) return null
+      return info.totalSamples / info.sampleRate
+    }
+  } catch {
+    // A header we cannot read here is left to the analysis, which explains what is wrong with it.
+  }
+  return null
 }
 
 // ---- shared helpers -----------------------------------------------------------------------------
@@ -237,7 +273,11 @@ function failOnCodecErrors (r: DecodedChunk, format: AudioFormat) {
 
 const KSDATAFORMAT_TAIL = [0x00, 0x00, 0x00, 0x00, 0x10, 0x00, 0x80, 0x00, 0x00, 0xaa, 0x00, 0x38, 0x9b, 0x71]
 
-interface WavHeader { formatTag: 1 | 3, channels: number, sampleRate: number, bytesPer: number, blockAlign: number, dataStart: number, dataSize: number }
+interface WavHeader {
+  formatTag: 1 | 3, channels: number, sampleRate: number, bytesPer: number, blockAlign: number, dataStart: number, dataSize: number
+  /** The data chunk's size was not written (streaming writer): `dataSize` is what the bytes hold. */
+  sizeUnknown?: boolean
+}
 
 function readWavHeader (b: Uint8Array): WavHeader {
   const fail = (reason: string, extra: Record<string, unknown> = {}): never => { throw new AnalysisError('corrupt', { format: 'wav', reason, ...extra }) }
@@ -248,6 +288,7 @@ function readWavHeader (b: Uint8Array): WavHeader {
   let fmt: Omit<WavHeader, 'dataStart' | 'dataSize'> | null = null
   let dataStart = -1
   let dataSize = 0
+  let sizeUnknown = false
   let p = 12
   while (p + 8 <= b.length) {
     const body = p + 8
@@ -261,8 +302,13 @@ function readWavHeader (b: Uint8Array): WavHeader {
     } else if (isAscii(b, p, 'data')) {
       // 0xFFFFFFFF: the real size is in ds64 (RF64), or a streaming writer never came back to fill
       // it in; such writers also leave 0 with the samples following to the end of the file.
-      if (size === 0xffffffff) size = ds64DataSize ?? b.length - body
-      else if (size === 0 && ds64DataSize === null && b.length - body >= 4 && !looksLikeChunkId(b, body)) size = b.length - body
+      if (size === 0xffffffff) {
+        sizeUnknown = ds64DataSize === null
+        size = ds64DataSize ?? b.length - body
+      } else if (size === 0 && ds64DataSize === null && b.length - body >= 4 && !looksLikeChunkId(b, body)) {
+        sizeUnknown = true
+        size = b.length - body
+      }
       dataStart = body
       dataSize = size
       if (fmt) break
@@ -275,7 +321,7 @@ function readWavHeader (b: Uint8Array): WavHeader {
   }
   if (!fmt) fail('no_fmt_chunk')
   if (dataStart < 0) fail('no_data_chunk')
-  return { ...fmt!, dataStart, dataSize }
+  return sizeUnknown ? { ...fmt!, dataStart, dataSize, sizeUnknown } : { ...fmt!, dataStart, dataSize }
 }
 
 function looksLikeChunkId (b: Uint8Array, at: number): boolean {
@@ -1136,4 +1182,174 @@ async function decodeWebmOpus (b: Uint8Array, limits: Limits): Promise<DecodedAu
   // DiscardPadding on the last block marks encoder padding at the end (Matroska spec).
   const endSamples = total - head.preSkip - Math.round((mkv.endPaddingNs * 48000) / 1e9)
   return decodeOpusPackets(mkv.packets, head, format, limits, endSamples, mkv.truncated)
+}
+
+// ---- MP4 / M4A with AAC (ISO/IEC 14496-12 boxes, 14496-14 esds, 14496-3 AAC) --------------------
+
+// Brands of files that carry plain audio: iTunes/Apple audio, the ISO base and MP4 families, 3GPP
+// (phone recorders), DASH/CMAF fragments (browser recorders) and QuickTime.
+const MP4_BRANDS = new Set(['M4A ', 'M4B ', 'M4P ', 'mp41', 'mp42', 'isom', 'iso2', 'iso3', 'iso4', 'iso5', 'iso6', 'iso7', 'iso8', 'iso9',
+  'avc1', 'dash', 'cmfc', 'cmf2', 'msdh', 'msix', '3gp4', '3gp5', '3gp6', '3g2a', 'qt  ', 'MSNV', 'mp4a', 'f4a '])
+// objectTypeIndication values for AAC: MPEG-4 audio, and MPEG-2 AAC Main, LC and SSR profiles.
+const AAC_OTI = new Set([0x40, 0x66, 0x67, 0x68])
+const MP4_CONTAINERS = new Set(['trak', 'mdia', 'minf', 'stbl'])
+
+interface Mp4Track { codec: string, oti: number | null, channels: number, sampleRate: number, timescale: number, duration: number }
+interface Mp4Info { track: Mp4Track | null, moov: boolean, truncated: boolean }
+
+function u32 (b: Uint8Array, at: number): number {
+  return ((b[at]! << 24) >>> 0) + ((b[at + 1]! << 16) | (b[at + 2]! << 8) | b[at + 3]!)
+}
+
+function boxType (b: Uint8Array, at: number): string {
+  return String.fromCharCode(b[at]!, b[at + 1]!, b[at + 2]!, b[at + 3]!)
+}
+
+/** An ISO BMFF file: an 'ftyp' box first whose major or a compatible brand is one we take. */
+function isMp4 (b: Uint8Array): boolean {
+  if (b.length < 16 || !isAscii(b, 4, 'ftyp')) return false
+  const size = u32(b, 0)
+  if (size < 16 || size > 4096) return false
+  const end = Math.min(size, b.length)
+  if (MP4_BRANDS.has(boxType(b, 8))) return true
+  for (let p = 16; p + 4 <= end; p += 4) if (MP4_BRANDS.has(boxType(b, p))) return true
+  return false
+}
+
+/** Iterates the boxes of [from, to): type, body start and end (clipped to the bytes we have). */
+function * mp4Boxes (b: Uint8Array, from: number, to: number, out: Mp4Info): Generator<{ type: string, body: number, end: number }> {
+  let p = from
+  while (p + 8 <= to) {
+    let size = u32(b, p)
+    let body = p + 8
+    if (size === 1) {
+      if (p + 16 > b.length) { out.truncated = true; return }
+      size = u32(b, p + 8) * 2 ** 32 + u32(b, p + 12)
+      body = p + 16
+    } else if (size === 0) {
+      size = to - p // runs to the end of the enclosing box or file
+    }
+    if (size < body - p) throw new AnalysisError('corrupt', { format: 'mp4-aac', reason: 'box_size', offset: p })
+    const end = p + size
+    if (end > b.length) out.truncated = true
+    yield { type: boxType(b, p + 4), body, end: Math.min(end, to) }
+    p = end
+  }
+  if (p < to && to === b.length) out.truncated = true
+}
+
+/** The first sound track's codec and rates, from the moov box; `truncated` when a box runs past the end. */
+function readMp4Info (b: Uint8Array): Mp4Info {
+  const out: Mp4Info = { track: null, moov: false, truncated: false }
+  for (const top of mp4Boxes(b, 0, b.length, out)) {
+    if (top.type !== 'moov') continue
+    out.moov = true
+    if (top.end > b.length || out.truncated) { out.truncated = true; continue } // moov cut short: no track to trust
+    for (const t of mp4Boxes(b, top.body, top.end, out)) {
+      if (t.type !== 'trak') continue
+      const track = readMp4Track(b, t.body, t.end, out)
+      if (track) { out.track = track; break }
+    }
+  }
+  return out
+}
+
+function readMp4Track (b: Uint8Array, from: number, to: number, out: Mp4Info): Mp4Track | null {
+  let handler = ''
+  const t: Mp4Track = { codec: '', oti: null, channels: 0, sampleRate: 0, timescale: 0, duration: 0 }
+  const walk = (a: number, z: number) => {
+    for (const x of mp4Boxes(b, a, z, out)) {
+      if (MP4_CONTAINERS.has(x.type)) walk(x.body, x.end)
+      else if (x.type === 'hdlr' && x.body + 12 <= x.end) handler = boxType(b, x.body + 8)
+      else if (x.type === 'mdhd' && x.body + 24 <= x.end) {
+        const v1 = b[x.body] === 1
+        if (v1 && x.body + 36 <= x.end) { t.timescale = u32(b, x.body + 20); t.duration = u32(b, x.body + 24) * 2 ** 32 + u32(b, x.body + 28) }
+        else if (!v1) { t.timescale = u32(b, x.body + 12); t.duration = u32(b, x.body + 16) }
+      } else if (x.type === 'stsd' && x.body + 16 <= x.end && !t.codec) {
+        const e = x.body + 8 // first sample entry
+        const eEnd = Math.min(x.end, e + u32(b, e))
+        t.codec = boxType(b, e + 4)
+        if (e + 36 <= eEnd) {
+          t.channels = (b[e + 24]! << 8) | b[e + 25]!
+          t.sampleRate = (b[e + 32]! << 8) | b[e + 33]! // 16.16 fixed point, integer part
+          const version = (b[e + 16]! << 8) | b[e + 17]!
+          const children = e + (version === 1 ? 52 : version === 2 ? 72 : 36)
+          for (const c of mp4Boxes(b, children, eEnd, out)) if (c.type === 'esds') t.oti = esdsObjectType(b, c.body + 4, c.end)
+        }
+      }
+    }
+  }
+  walk(from, to)
+  return handler === 'soun' ? t : null
+}
+
+/** objectTypeIndication of the DecoderConfigDescriptor (tag 4) inside an ES_Descriptor (tag 3). */
+function esdsObjectType (b: Uint8Array, from: number, to: number): number | null {
+  let p = from
+  while (p < to) {
+    const tag = b[p++]!
+    let len = 0
+    for (let i = 0; i < 4 && p < to; i++) { const c = b[p++]!; len = len * 128 + (c & 0x7f); if (!(c & 0x80)) break }
+    if (tag === 0x03) { const flags = b[p + 2]!; p += 3 + (flags & 0x80 ? 2 : 0) + (flags & 0x20 ? 1 + b[p + 3]! : 0) + (flags & 0x40 ? 2 : 0); continue }
+    if (tag === 0x04) return p < to ? b[p]! : null
+    p += len
+  }
+  return null
+}
+
+function isAacTrack (t: Mp4Track): boolean {
+  return t.codec === 'mp4a' && (t.oti === null || AAC_OTI.has(t.oti))
+}
+
+/** An MP4 we do not take: another codec is not ours; damage before the audio track is corrupt. */
+function explainMp4 (b: Uint8Array) {
+  if (!isMp4(b)) return
+  const info = readMp4Info(b)
+  if (info.track && !isAacTrack(info.track)) {
+    throw new AnalysisError('not_audio', { format: 'mp4-aac', reason: 'codec', codec: info.track.codec, objectType: info.track.oti })
+  }
+}
+
+async function decodeMp4Aac (b: Uint8Array, limits: Limits): Promise<DecodedAudio> {
+  const format = 'mp4-aac'
+  const info = readMp4Info(b)
+  if (!info.moov || (!info.track && info.truncated)) {
+    throw new AnalysisError('corrupt', { format, reason: info.truncated ? 'truncated_before_audio' : 'no_moov' })
+  }
+  const track = info.track
+  if (!track) throw new AnalysisError('corrupt', { format, reason: 'no_audio_track' })
+  if (!isAacTrack(track)) throw new AnalysisError('not_audio', { format, reason: 'codec', codec: track.codec, objectType: track.oti })
+  const headerRate = track.sampleRate || track.timescale
+  checkSampleRate(headerRate, format)
+  // Fragmented files (recorders) leave the duration 0 in mdhd; the mixer's frame cap still holds.
+  if (track.timescale > 0 && track.duration > 0) checkDuration(track.duration / track.timescale, limits, format)
+
+  const { decoder } = await import('@audio/decode-mp4')
+  const dec = await decoder()
+  // SBR (HE-AAC) doubles the output rate over the core rate the sample entry gives.
+  const mixer = new MonoMixer(format, Math.ceil(limits.maxDurationS * 2 * headerRate))
+  let sampleRate = headerRate
+  let channels = track.channels
+  let errors = 0
+  let first = true
+  try {
+    const take = (r: { channelData: Float32Array[], sampleRate: number, errors?: number }) => {
+      // FAAD2 gives no output for the first access unit it sees (decoder delay) and counts it as an error.
+      if (typeof r.errors === 'number') { errors += Math.max(0, r.errors - (first && r.channelData.length ? 1 : 0)); if (r.channelData.length) first = false }
+      const n = framesOf({ channelData: r.channelData, sampleRate: r.sampleRate })
+      if (n > 0) { sampleRate = r.sampleRate || sampleRate; channels = r.channelData.length; mixer.push(r.channelData, n) }
+    }
+    for (let p = 0; p < b.length; p += CHUNK_BYTES) take(await dec.decode(b.subarray(p, p + CHUNK_BYTES)))
+    take(await dec.flush())
+  } finally {
+    dec.free()
+  }
+  if (errors > 0) throw new AnalysisError('corrupt', { format, reason: 'decoder_errors', count: errors })
+  checkSampleRate(sampleRate, format)
+  if (sampleRate !== headerRate && sampleRate !== 2 * headerRate) {
+    throw new AnalysisError('corrupt', { format, reason: 'sample_rate_mismatch', headerRate, sampleRate })
+  }
+  checkDuration(mixer.frames / sampleRate, limits, format)
+  requireFrames(mixer.frames, sampleRate, info.truncated, format)
+  return result(mixer, sampleRate, channels, info.truncated)
 }

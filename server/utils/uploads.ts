@@ -8,7 +8,7 @@ import { PassThrough, Writable } from 'node:stream'
 import type { IncomingMessage } from 'node:http'
 import type { H3Event } from 'h3'
 import formidable, { errors as formidableErrors } from 'formidable'
-import { detectFormat, type AudioFormat } from '../analysis/decode'
+import { detectFormat, headerDurationS, type AudioFormat } from '../analysis/decode'
 import { apiError } from './errors'
 
 /** Bytes read before the format is decided (enough for any WAV/FLAC/Ogg/WebM header). */
@@ -25,6 +25,7 @@ export const AUDIO_MIME: Readonly<Record<AudioFormat, string>> = {
   'ogg-vorbis': 'audio/ogg',
   'ogg-opus': 'audio/ogg; codecs=opus',
   'webm-opus': 'audio/webm; codecs=opus',
+  'mp4-aac': 'audio/mp4',
 }
 
 export interface StoredUpload {
@@ -52,6 +53,8 @@ export interface UploadOptions {
   keyPrefix: string
   /** Largest total size of the text fields. */
   maxFieldsBytes?: number
+  /** Longest take in seconds, refused here when the container's header states its length (WAV, FLAC). */
+  maxDurationS?: number
 }
 
 /** An object store as uploads need it (server/utils/storage.ts provides one). */
@@ -82,7 +85,7 @@ export function sniffAudio (head: Uint8Array, complete: boolean): AudioFormat | 
 
 /**
  * Parses a multipart request: text fields in memory, the one file streamed into the store under
- * a random key. Throws h3 errors: 400 bad form, 413 too large, 415 not audio, 422 empty file.
+ * a random key. Throws h3 errors: 400 bad form, 413 too large or too long, 415 not audio, 422 empty file.
  */
 export async function receiveUpload (event: H3Event, store: UploadStore, opts: UploadOptions): Promise<UploadResult> {
   const req = event.node.req as IncomingMessage
@@ -113,7 +116,7 @@ export async function receiveUpload (event: H3Event, store: UploadStore, opts: U
         return refusingWritable(new UploadRefused(400, 'unexpected_file', 'Unexpected file field', { field: f.fieldName ?? null, expected: opts.fileField }))
       }
       const key = `${opts.keyPrefix}${randomUUID()}`
-      const sink = storeWritable(store, key, (format, bytes) => {
+      const sink = storeWritable(store, key, opts.maxDurationS, (format, bytes) => {
         stored = { key, bytes, format, mime: AUDIO_MIME[format], originalName: cleanName(f.originalFilename) }
       })
       pending = { done: sink.done, abort: sink.abort, key }
@@ -171,7 +174,7 @@ function refusingWritable (err: Error): Writable {
  * A writable that buffers the first bytes until the format is known, then streams into the
  * store. `done` settles when the object is complete (or the upload is aborted).
  */
-function storeWritable (store: UploadStore, key: string, onStored: (format: AudioFormat, bytes: number) => void) {
+function storeWritable (store: UploadStore, key: string, maxDurationS: number | undefined, onStored: (format: AudioFormat, bytes: number) => void) {
   const controller = new AbortController()
   let head: Buffer[] = []
   let headBytes = 0
@@ -191,6 +194,16 @@ function storeWritable (store: UploadStore, key: string, onStored: (format: Audi
     const sniffed = sniffAudio(bytes, complete)
     if (sniffed === null) return null
     if (sniffed === 'unknown') return new UploadRefused(415, 'not_audio', 'Not an audio file we read')
+    if (maxDurationS !== undefined && (sniffed === 'wav' || sniffed === 'flac')) {
+      const durationS = headerDurationS(bytes)
+      // The first chunk may end inside the header (or before a WAV's data chunk): read on to tell.
+      if (durationS === null && !complete && headBytes < SNIFF_BYTES) return null
+      if (durationS !== null && durationS > maxDurationS) {
+        return new UploadRefused(413, 'too_long', 'The recording is longer than the allowed length', {
+          durationS: Math.round(durationS * 1000) / 1000, maxDurationS,
+        })
+      }
+    }
     format = sniffed
     body = new PassThrough({ highWaterMark: 1024 * 1024 })
     upload = store.put(key, body, { contentType: AUDIO_MIME[sniffed], abortSignal: controller.signal })
@@ -252,7 +265,11 @@ function storeDown (e: Error): Error {
 }
 
 function toHttpError (event: H3Event, err: unknown, opts: UploadOptions) {
-  if (err instanceof UploadRefused) return apiError(err.status, err.code, err.message, err.details)
+  if (err instanceof UploadRefused) {
+    // Refused before the body was read: do not wait for (or keep the socket for) the rest of it.
+    if (err.code === 'too_long') event.node.res.setHeader('Connection', 'close')
+    return apiError(err.status, err.code, err.message, err.details)
+  }
   const e = err as { code?: number, httpCode?: number, message?: string }
   const fe = formidableErrors as Record<string, number>
   if (e?.code === fe.biggerThanMaxFileSize || e?.code === fe.biggerThanTotalMaxFileSize) {

@@ -323,6 +323,22 @@ describe('refused uploads', () => {
     expect([count(), storedObjects(app).length]).toEqual(before)
   })
 
+  it('a WAV whose header states more than 20 minutes → 413 too_long at upload, nothing stored', async () => {
+    const mine = async () => ((await (await app.fetch('/api/takes?player=me', { cookie: clara })).json()) as any).total as number
+    const before = [count(), await mine(), storedObjects(app).length]
+    // One second of audio behind a header that claims 21 minutes of 16-bit mono at 8 kHz: the
+    // data chunk size (Microsoft RIFF/WAVE) divided by the byte rate is what the header states.
+    const wav = encodeWav(new Float32Array(8000), 8000)
+    const v = new DataView(wav.buffer, wav.byteOffset, wav.byteLength)
+    v.setUint32(40, 21 * 60 * 8000 * 2, true) // the canonical 44-byte header has the data size at 40
+    expect(String.fromCharCode(...wav.subarray(36, 40))).toBe('data')
+    const r = await postTake(app, clara, { drillId, part: 'Soprano', audio: wav, name: 'long.wav' })
+    expect(r.status).toBe(413)
+    expect(r.body.data.code).toBe('too_long')
+    expect(r.body.data).toMatchObject({ code: 'too_long', durationS: 1260, maxDurationS: 1200 })
+    expect([count(), await mine(), storedObjects(app).length]).toEqual(before)
+  })
+
   it('an empty file → 422 empty', async () => {
     const r = await postTake(app, clara, { drillId, part: 'Soprano', audio: new Uint8Array(0) })
     expect(r.status).toBe(422)

@@ -9,6 +9,7 @@ export default defineEventHandler(async (event) => {
   const upload = await receiveUpload(event, store, {
     fileField: 'audio',
     maxBytes: Number(config.maxUploadBytes),
+    maxDurationS: Number(config.maxDurationS),
     keyPrefix: 'takes/',
   })
   let take

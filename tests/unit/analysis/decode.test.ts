@@ -1,5 +1,5 @@
 // Every decoder on the committed fixtures (tests/fixtures/audio, made by
-// scripts/make-audio-fixtures.ts with Debian's flac, lame, oggenc, opusenc and mkvmerge).
+// scripts/make-audio-fixtures.ts with Debian's flac, lame, oggenc, opusenc, mkvmerge and ffmpeg).
 // The truth for each file (tone, sample rate, channels, length) is what the encoders were given,
 // listed in tests/fixtures/audio/README.md. The tone is measured two independent ways: counting
 // positive-going zero crossings with linear interpolation (common practice for a pure tone) and
@@ -63,6 +63,8 @@ const row = (file: string, format: AudioFormat, hz: number, rate: number, channe
 const mp3Slack = (rate: number) => (3 * (rate >= 32000 ? 1152 : 576)) / rate
 // Recorder-style WebM signals no end padding (as browsers do): up to one 20-ms packet extra.
 const webmSlack = 0.021
+// A fragmented MP4 carries no edit list to trim the AAC encoder's padding: up to one 1024-sample frame.
+const fragSlack = 1024 / 48000
 
 const DECODABLE: Row[] = [
   row('wav-pcm8-mono-8000-440.wav', 'wav', 440, 8000, 1, 1, [0.5]),
@@ -96,6 +98,9 @@ const DECODABLE: Row[] = [
   row('webm-opus-mono-48000-440.webm', 'webm-opus', 440, 48000, 1, 1, [0.5]),
   row('webm-recorder-opus-mono-48000-440.webm', 'webm-opus', 440, 48000, 1, 1, [0.5], webmSlack),
   row('webm-recorder-opus-stereo-48000-220.webm', 'webm-opus', 220, 48000, 2, 1, [0.5, 0.3], webmSlack),
+  // AAC-LC in MP4 (ISO/IEC 14496-3): the moov's edit list trims the encoder's priming and padding.
+  row('aac-mono-44100-440.m4a', 'mp4-aac', 440, 44100, 1, 1, [0.5]),
+  row('aac-fragmented-stereo-48000-220.m4a', 'mp4-aac', 220, 48000, 2, 1, [0.5, 0.3], fragSlack),
 ]
 
 const decoded = new Map<string, Promise<DecodedAudio>>()
@@ -187,6 +192,7 @@ describe('cut-off files', () => {
     ['mp3-truncated-70pct-of-2s-440.mp3', 'mp3', 440, 44100, 1.2],
     ['opus-truncated-70pct-of-2s-440.opus', 'ogg-opus', 440, 48000, 1.2],
     ['webm-recorder-truncated-70pct-of-2s-440.webm', 'webm-opus', 440, 48000, 1.3],
+    ['aac-truncated-70pct-of-2s-440.m4a', 'mp4-aac', 440, 44100, 1.2],
   ]
   it.each(CUT)('%s: what survives is decoded and flagged truncated', async (file, format, hz, rate, minS) => {
     const a = await decodeAudio(fixture(file))
@@ -226,6 +232,7 @@ describe('bad input gets a stable code', () => {
     ['corrupt-middle.mp3', 'corrupt'],
     ['corrupt-middle.opus', 'corrupt'],
     ['corrupt-middle.webm', 'corrupt'],
+    ['corrupt-middle.m4a', 'corrupt'],
   ]
   it.each(BAD)('%s → %s', async (file, code) => {
     const err = await codeOf(fixture(file))
@@ -256,7 +263,7 @@ describe('bad input gets a stable code', () => {
     expect(err.details?.durationS).toBe(1800)
   })
 
-  it.each(['flac-mono-44100-440.flac', 'mp3-mono-44100-440.mp3', 'vorbis-mono-44100-440.ogg', 'opus-mono-48000-440.opus', 'webm-recorder-opus-mono-48000-440.webm'])(
+  it.each(['flac-mono-44100-440.flac', 'mp3-mono-44100-440.mp3', 'vorbis-mono-44100-440.ogg', 'opus-mono-48000-440.opus', 'webm-recorder-opus-mono-48000-440.webm', 'aac-mono-44100-440.m4a'])(
     '%s longer than maxDurationS → too_long', async (file) => {
       expect((await codeOf(fixture(file), { maxDurationS: 0.5 })).code).toBe('too_long')
     })
@@ -310,6 +317,27 @@ describe('bad input gets a stable code', () => {
     expect((await codeOf(file([])))).toMatchObject({ code: 'corrupt' })
   })
 
+  it('an MP4 whose audio is not AAC is not_audio; one cut before its moov ends is corrupt', async () => {
+    const b = fixture('aac-mono-44100-440.m4a')
+    expect(detectFormat(b)).toBe('mp4-aac')
+    // The sample entry type names the codec (ISO/IEC 14496-12 §8.5.2): make it Apple Lossless.
+    const alac = b.slice()
+    const at = Buffer.from(alac).indexOf('mp4a')
+    expect(at).toBeGreaterThan(0)
+    alac.set([0x61, 0x6c, 0x61, 0x63], at) // 'alac'
+    expect(detectFormat(alac)).toBeNull()
+    const err = await codeOf(alac)
+    expect(err.code).toBe('not_audio')
+    expect(err.details?.codec).toBe('alac')
+    // ftyp and the start of the moov only: the sniff says MP4 (more may come), the decoder says corrupt.
+    const head = b.subarray(0, 200)
+    expect(detectFormat(head)).toBe('mp4-aac')
+    expect((await codeOf(head)).code).toBe('corrupt')
+    // An ftyp box alone, with a brand we do not take, is not audio we read.
+    const other = Uint8Array.from([0, 0, 0, 16, ...Buffer.from('ftypheic'), 0, 0, 0, 0])
+    expect(detectFormat(other)).toBeNull()
+  })
+
   it('detectFormat works on the first bytes of a file (an upload still arriving)', () => {
     for (const r of DECODABLE) {
       const b = fixture(r.file)
@@ -341,7 +369,7 @@ describe('bad input gets a stable code', () => {
   })
 
   it('never throws anything but an AnalysisError on damaged bytes (every fixture cut at many points)', async () => {
-    for (const file of ['flac-mono-44100-440.flac', 'mp3-mono-44100-440.mp3', 'vorbis-mono-44100-440.ogg', 'opus-mono-48000-440.opus', 'webm-opus-mono-48000-440.webm', 'wav-pcm16-mono-8000-220-list-chunk.wav']) {
+    for (const file of ['flac-mono-44100-440.flac', 'mp3-mono-44100-440.mp3', 'vorbis-mono-44100-440.ogg', 'opus-mono-48000-440.opus', 'webm-opus-mono-48000-440.webm', 'wav-pcm16-mono-8000-220-list-chunk.wav', 'aac-mono-44100-440.m4a', 'aac-fragmented-stereo-48000-220.m4a']) {
       const b = fixture(file)
       for (const cut of [1, 5, 13, 40, 100, 300, 1000]) {
         if (cut >= b.length) continue
