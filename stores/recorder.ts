@@ -4,7 +4,8 @@
 export type MicPermission = 'unknown' | 'requesting' | 'granted' | 'denied' | 'no-device' | 'busy' | 'insecure' | 'unsupported' | 'error'
 
 /** Formats a browser records in that the analysis reads, best first. */
-export const RECORD_MIME_TYPES = ['audio/webm;codecs=opus', 'audio/ogg;codecs=opus', 'audio/webm'] as const
+// Chromium and Firefox record Opus; Safari only MP4/AAC, which the analysis also decodes.
+export const RECORD_MIME_TYPES = ['audio/webm;codecs=opus', 'audio/ogg;codecs=opus', 'audio/webm', 'audio/mp4;codecs=mp4a.40.2', 'audio/mp4'] as const
 
 /** The first recording format this browser supports that Driftline decodes, or null. */
 export function pickRecordMime(isSupported: (mime: string) => boolean): string | null {

@@ -3,7 +3,7 @@ import { flushPromises } from '@vue/test-utils'
 import { mountSuspended } from '@nuxt/test-utils/runtime'
 import TakeRecorder from '~/components/takes/TakeRecorder.client.vue'
 import { usePracticeStore } from '~/stores/practice'
-import { useRecorderStore } from '~/stores/recorder'
+import { pickRecordMime, useRecorderStore } from '~/stores/recorder'
 import { FakeAudioContext, type FakeOscillator } from '../practice/audio-mock'
 
 class FakeTrack { stopped = false; stop() { this.stopped = true } }
@@ -155,7 +155,7 @@ describe('TakeRecorder', () => {
   })
 
   it('says so when the browser cannot record in a format the analysis reads', async () => {
-    FakeMediaRecorder.supported = ['audio/mp4']
+    FakeMediaRecorder.supported = ['audio/x-caf'] // a format the analysis does not read
     const w = await mountSuspended(TakeRecorder, { props: { tempo: 60, guide } })
     await w.find('button').trigger('click')
     await flushPromises()
@@ -172,5 +172,15 @@ describe('TakeRecorder', () => {
     await flushPromises()
     expect(getUserMedia).not.toHaveBeenCalled()
     expect(w.find('[data-testid="mic-help"]').text()).toContain('secure (https) address')
+  })
+
+  it('records MP4/AAC where the browser offers nothing else (Safari), and Opus first everywhere else', () => {
+    // What each browser's MediaRecorder.isTypeSupported answers (common practice: Safari records
+    // only audio/mp4; Chromium audio/webm with Opus).
+    const safari = (m: string) => m.startsWith('audio/mp4')
+    const chromium = (m: string) => m.startsWith('audio/webm')
+    expect(pickRecordMime(safari)).toBe('audio/mp4;codecs=mp4a.40.2')
+    expect(pickRecordMime(chromium)).toBe('audio/webm;codecs=opus')
+    expect(pickRecordMime(() => false)).toBeNull()
   })
 })
