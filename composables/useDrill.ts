@@ -1,39 +1,10 @@
 import type { DrillDocument, SystemName, SystemOptions } from '#shared/drill/schema'
+import type { TargetChord, TargetNote, TargetsResult } from '#shared/tuning/index'
 
-/** One note of a chord with its target, as GET /api/drills/:id sends it (rests are left out). */
-export interface DrillTargetNote {
-  part: string
-  note: string
-  midi: number
-  member: string | null
-  targetHz: number
-  equalHz: number
-  centsFromEqual: number
-  ratio: string | null
-  writtenNote: string | null
-}
-
-export interface DrillTargetChord {
-  index: number
-  startBeat: number
-  beats: number
-  symbol: string | null
-  root: string | null
-  quality: string | null
-  centreCents: number
-  notes: DrillTargetNote[]
-}
-
-/** Targets of every note of a drill in one tuning system. */
-export interface DrillTargets {
-  system: SystemName
-  a4: number
-  /** How the system was set up, in words. */
-  description?: string
-  chords: DrillTargetChord[]
-  driftCents: number
-  warnings: { code: string, chord: number | null, message: string }[]
-}
+// The API sends the tuning engine's own result; these names are what the drill screens use.
+export type DrillTargetNote = TargetNote
+export type DrillTargetChord = TargetChord
+export type DrillTargets = TargetsResult
 
 /** GET /api/drills/:id */
 export interface DrillView {

@@ -206,6 +206,13 @@ export async function findTakeForUser (db: Knex, user: SessionUser, takeId: numb
   return { take, membership, isOwner, isDirector, canView }
 }
 
+/** The take as the caller may see it; 404 when it is missing or not theirs. */
+export async function requireTakeForUser (db: Knex, user: SessionUser, takeId: number): Promise<TakeAccess> {
+  const access = await findTakeForUser(db, user, takeId)
+  if (!access) throw apiError(404, 'not_found', 'Take not found')
+  return access
+}
+
 // ---- reading ------------------------------------------------------------------------------------
 
 const num = (v: unknown): number | null => (v == null || !Number.isFinite(Number(v)) ? null : Number(v))

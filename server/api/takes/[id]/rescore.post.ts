@@ -15,7 +15,6 @@ export default defineEventHandler(async (event) => {
   const { id } = validateParams(event, IdParams)
   const body = await readJsonBody(event, Body)
   const db = useDb()
-  const access = await findTakeForUser(db, user, id)
-  if (!access) throw apiError(404, 'not_found', 'Take not found')
+  const access = await requireTakeForUser(db, user, id)
   return rescoreTake(db, access, body)
 })

@@ -3,7 +3,6 @@ export default defineEventHandler(async (event) => {
   const user = await requireUser(event)
   const { id } = validateParams(event, IdParams)
   const db = useDb()
-  const access = await findTakeForUser(db, user, id)
-  if (!access) throw apiError(404, 'not_found', 'Take not found')
+  const access = await requireTakeForUser(db, user, id)
   return restoreTake(db, user, access)
 })
