@@ -1,10 +1,4 @@
-/** The signed-in user as the server puts it in the session. */
-export interface SessionUser {
-  id: number
-  email: string
-  name: string
-  siteRole: 'admin' | null
-}
+import type { SessionUser } from '#shared/types/user'
 
 /** Typed view of nuxt-auth-utils' session plus sign-out; the server decides, this only mirrors. */
 export function useCurrentUser() {

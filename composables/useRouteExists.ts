@@ -1,15 +1,3 @@
-const PARAM = /(:\w+(?:\([^)]*\))?[?*+]?)/
-
-/** A router path pattern ("/takes/:id()", "/:slug(.*)*") as a regular expression. */
-export function routePatternToRegExp(pattern: string): RegExp {
-  const body = pattern.split(PARAM).map((part) => {
-    if (!part.startsWith(':')) return part.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')
-    if (part.includes('(.*)')) return '.*'
-    return part.endsWith('?') ? '[^/]*' : '[^/]+'
-  }).join('')
-  return new RegExp(`^${body}/?$`)
-}
-
 /**
  * Whether the app has a page for a path, so links are only drawn to screens that exist. Matches
  * the route table directly rather than `router.resolve`, which warns about every miss.

@@ -106,13 +106,22 @@ export function classifyMagnitude(cents: number | null | undefined, tolerance: n
   return { direction: 'none', step, token: `off-${step}` }
 }
 
+/**
+ * The one number format: a real minus sign (U+2212), "+" in front of positive values when
+ * `signed`, never "−0.0", then the unit; `missing` for null or a non-number.
+ * formatNumber(-6.24, 1, '¢', { signed: true }) → "−6.2 ¢".
+ */
+export function formatNumber(value: number | null | undefined, digits: number, unit = '', opts: { signed?: boolean, missing?: string } = {}): string {
+  if (value == null || !Number.isFinite(value)) return opts.missing ?? '—'
+  const c = shown(value, digits)
+  const body = Math.abs(c).toFixed(digits)
+  const sign = c < 0 ? MINUS : c > 0 && opts.signed ? '+' : ''
+  return unit ? `${sign}${body} ${unit}` : `${sign}${body}`
+}
+
 /** "−6.2 ¢", "+3.0 ¢", "0.0 ¢" (never "−0.0 ¢"); null or a non-number gives "no pitch found". */
 export function formatCents(cents: number | null | undefined, digits = 1): string {
-  if (cents == null || !Number.isFinite(cents)) return 'no pitch found'
-  const c = shown(cents, digits)
-  const body = Math.abs(c).toFixed(digits)
-  if (c === 0) return `${body} ¢`
-  return `${c < 0 ? MINUS : '+'}${body} ¢`
+  return formatNumber(cents, digits, '¢', { signed: true, missing: 'no pitch found' })
 }
 
 /** An unsigned size such as a mean absolute deviation: "6.2 ¢". */
@@ -147,11 +156,6 @@ export function tokenClasses(token: DeviationToken): string {
   return TOKEN_CLASSES[token]
 }
 
-/** Tailwind text class for a direction written on paper. */
-export function directionTextClass(direction: Direction): string {
-  return DIRECTION_TEXT_CLASSES[direction]
-}
-
 // Written out in full so Tailwind's scanner and the safelist find them.
 const TOKEN_CLASSES: Record<DeviationToken, string> = {
   'flat-3': 'bg-flat-3 text-white',
@@ -165,13 +169,6 @@ const TOKEN_CLASSES: Record<DeviationToken, string> = {
   'off-2': 'bg-off-2 text-ink',
   'off-3': 'bg-off-3 text-white',
   'none': 'bg-no-pitch text-muted',
-}
-
-const DIRECTION_TEXT_CLASSES: Record<Direction, string> = {
-  'flat': 'text-flat-ink',
-  'sharp': 'text-sharp-ink',
-  'in-tune': 'text-in-tune-ink',
-  'none': 'text-muted',
 }
 
 export interface LegendEntry {

@@ -4,8 +4,11 @@
 // and the scoring options; the worker answers with progress, then the result or an error.
 import { parentPort, threadId } from 'node:worker_threads'
 import { setPriority } from 'node:os'
-import { analyzeTake } from './index'
+import type { DrillDocument, SystemOptions } from '../../shared/drill/schema'
+import type { TakeReport } from '../../shared/types/take'
+import { analyzeTake, type AnalyzeOptions } from './index'
 import { isAnalysisError } from './errors'
+import type { Measurement } from './types'
 
 /** parent → worker */
 export interface WorkerJob {
@@ -13,20 +16,20 @@ export interface WorkerJob {
   jobId: number
   takeId: number
   bytes: Uint8Array
-  drill: unknown
+  drill: DrillDocument
   part: string
-  system?: unknown
-  a4?: number
-  tolerance?: number
-  maxBytes?: number
-  maxDurationS?: number
+  system: SystemOptions
+  a4: number
+  tolerance: number
+  maxBytes?: number | undefined
+  maxDurationS?: number | undefined
 }
 
-/** worker → parent */
+/** worker → parent; a result's report is the one the server stores and sends (shared/types/take.ts). */
 export type WorkerMessage =
   | { type: 'ready', threadId: number }
   | { type: 'progress', jobId: number, progress: number }
-  | { type: 'result', jobId: number, measurement: unknown, report: unknown, ms: number }
+  | { type: 'result', jobId: number, measurement: Measurement, report: TakeReport, ms: number }
   | { type: 'error', jobId: number, analysis: boolean, code: string, message: string, details?: Record<string, unknown> }
 
 const port = parentPort
@@ -61,15 +64,15 @@ async function run (job: WorkerJob) {
     port!.postMessage({ type: 'progress', jobId: job.jobId, progress } satisfies WorkerMessage)
   }
   try {
-    const opts = {
+    const opts: AnalyzeOptions = {
       system: job.system,
       a4: job.a4,
       tolerance: job.tolerance,
-      maxBytes: job.maxBytes,
-      maxDurationS: job.maxDurationS,
       onProgress,
+      ...(job.maxBytes !== undefined ? { maxBytes: job.maxBytes } : {}),
+      ...(job.maxDurationS !== undefined ? { maxDurationS: job.maxDurationS } : {}),
     }
-    const { measurement, report } = await analyzeTake(job.bytes, job.drill as never, job.part, opts as never)
+    const { measurement, report } = await analyzeTake(job.bytes, job.drill, job.part, opts)
     port!.postMessage({ type: 'result', jobId: job.jobId, measurement, report, ms: Math.round(performance.now() - started) } satisfies WorkerMessage)
   } catch (err) {
     if (isAnalysisError(err)) {

@@ -15,16 +15,14 @@ import { Worker } from 'node:worker_threads'
 import type { Readable } from 'node:stream'
 import type { Knex } from 'knex'
 import { ANALYSE_TAKE_JOB, claimJob, completeJob, enqueueJob, failJob, requeueStaleJobs, setJobProgress, type Job } from './jobs'
-import { loadTakeForAnalysis, markTakeAnalysing, markTakeFailed, markTakeQueued, messageForCode, saveAnalysis, type TakeStatus } from './takes'
+import type { TakeLiveState, TakeStatusName } from '../../shared/types/take'
+import { loadTakeForAnalysis, markTakeAnalysing, markTakeFailed, markTakeQueued, analysisErrorMessage, saveAnalysis } from './take-analysis'
 import type { ObjectStore } from './storage'
 import type { WorkerJob, WorkerMessage } from '../analysis/worker'
 
 /** A take's live state, as the event stream sends it. */
-export interface TakeEvent {
+export interface TakeEvent extends TakeLiveState {
   takeId: number
-  status: TakeStatus
-  progress: number
-  error: { code: string, message: string } | null
 }
 
 const events = new EventEmitter()
@@ -271,9 +269,8 @@ export class AnalysisPool {
       if (m.type === 'result') {
         const saved = await db.transaction(async (trx) => {
           const id = await saveAnalysis(trx, {
-            takeId, drillVersion: drill.version, system: doc.system, tolerance: doc.tolerance,
-            measurement: m.measurement, report: m.report as never, durationMs: m.ms,
-            engineVersion: (m.measurement as { engine?: string })?.engine ?? null,
+            takeId, drillVersion: drill.version, system: doc.system,
+            measurement: m.measurement, report: m.report, durationMs: m.ms,
           })
           // Lost the lock (this job was given to another worker meanwhile): keep nothing.
           // Where the time went, for the benchmark and for anyone reading the queue.
@@ -301,7 +298,7 @@ export class AnalysisPool {
   /** The audio cannot be scored: the take fails with the engine's code; no retry. */
   private async giveUp (slot: Slot, job: Job, takeId: number, code: string, message?: string) {
     const db = this.o.db()
-    const text = message ?? messageForCode(code)
+    const text = message ?? analysisErrorMessage(code)
     const ok = await db.transaction(async (trx) => {
       const r = await failJob(trx, job.id, slot.lockId, `${code}: ${text}`, { retry: false })
       if (r === null) return false
@@ -322,7 +319,7 @@ export class AnalysisPool {
       return r
     })
     if (outcome === 'requeued') emitTake({ takeId, status: 'queued', progress: 0, error: null })
-    if (outcome === 'failed') emitTake({ takeId, status: 'failed', progress: 0, error: { code: 'analysis_error', message: messageForCode('analysis_error') } })
+    if (outcome === 'failed') emitTake({ takeId, status: 'failed', progress: 0, error: { code: 'analysis_error', message: analysisErrorMessage('analysis_error') } })
   }
 
   /**
@@ -334,7 +331,7 @@ export class AnalysisPool {
       .whereIn('t.status', ['queued', 'analysing'])
       .select('t.id', 't.status',
         db.raw('(select j.status from jobs j where j.take_id = t.id order by j.id desc limit 1) as job_status'))
-    for (const t of open as { id: number, status: TakeStatus, job_status: string | null }[]) {
+    for (const t of open as { id: number, status: TakeStatusName, job_status: string | null }[]) {
       if (t.job_status === 'queued' && t.status !== 'queued') await markTakeQueued(db, t.id)
       else if (t.job_status === 'failed') await markTakeFailed(db, t.id, 'analysis_interrupted')
       else if (t.job_status == null || t.job_status === 'done') {

@@ -1,19 +1,13 @@
 import type { H3Event } from 'h3'
 import type { Knex } from 'knex'
+import type { EnsembleRole, SessionUser } from '../../shared/types/user'
 import { apiError } from './errors'
+import { membershipFor } from './access'
 
-export type EnsembleRole = 'director' | 'section_leader' | 'player'
 export const ENSEMBLE_ROLES: readonly EnsembleRole[] = ['director', 'section_leader', 'player']
 
 /** A director may do what a section leader may, who may do what a player may. */
 const ROLE_RANK: Record<EnsembleRole, number> = { player: 1, section_leader: 2, director: 3 }
-
-export interface SessionUser {
-  id: number
-  email: string
-  name: string
-  siteRole: 'admin' | null
-}
 
 export interface Membership {
   ensembleId: number
@@ -81,13 +75,9 @@ export async function findMembership (db: Knex, userId: number, ensembleId: numb
  * 404 when the ensemble is missing or the caller is not a member (not yours = not found).
  */
 export async function requireMembership (db: Knex, user: SessionUser, ensembleId: number): Promise<Membership> {
-  const m = await findMembership(db, user.id, ensembleId)
-  if (m) return m
-  if (user.siteRole === 'admin') {
-    const exists = await db('ensembles').where({ id: ensembleId }).first('id')
-    if (exists) return { ensembleId, userId: user.id, role: 'director', sectionId: null, viaSiteAdmin: true }
-  }
-  throw apiError(404, 'not_found', 'Ensemble not found')
+  const m = await membershipFor(db, user, ensembleId)
+  if (!m) throw apiError(404, 'not_found', 'Ensemble not found')
+  return m
 }
 
 /** Whether the membership holds one of the roles, or a higher one. */

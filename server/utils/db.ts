@@ -15,14 +15,3 @@ export async function closeDb (): Promise<void> {
   instance = undefined
   if (db) await db.destroy()
 }
-
-/** Current time as the ISO text every table stores. */
-export function nowIso (): string {
-  return new Date().toISOString()
-}
-
-/** Parses a JSON text column; null stays null. */
-export function parseJsonColumn<T = unknown> (text: string | null | undefined): T | null {
-  if (text == null || text === '') return null
-  return JSON.parse(text) as T
-}

@@ -1,6 +1,12 @@
+// Drills as data: saving and loading the document with its normalised copy, the lists the take
+// pages read, and reading an uploaded drill file.
 import type { Knex } from 'knex'
 import { noteToMidi } from '../../shared/tuning/pitch'
-import { DrillDocument, type DrillInput } from '../../shared/drill/schema'
+import { DrillDocument, parseDrill, type DrillInput } from '../../shared/drill/schema'
+import type { DrillListItem } from '../../shared/types/drill-view'
+import { midiToDrill } from '../../shared/drill/midi'
+import type { DrillAccess } from './access'
+import { partForSection } from './home'
 
 /** A note name in a drill that names no pitch ("H4", "Bb" without octave). */
 export class DrillNoteError extends Error {
@@ -108,5 +114,75 @@ export async function loadDrill (db: Knex, id: number): Promise<StoredDrill | nu
     version: row.version,
     archivedAt: row.archived_at,
     document: DrillDocument.parse(JSON.parse(row.document)),
+  }
+}
+
+/** The part to preselect for the caller: the assignment's, else the one named like their section. */
+export async function preselectedPart (db: Knex, access: DrillAccess, assignmentId?: number | null): Promise<string | null> {
+  const parts = access.drill.document.parts.map(p => p.name)
+  let assignmentPart: string | null = null
+  if (assignmentId) {
+    const a = await db('assignments').where({ id: assignmentId, drill_id: access.drill.id }).first('part')
+    assignmentPart = a?.part ?? null
+  }
+  let sectionName: string | null = null
+  if (access.membership.sectionId) {
+    const s = await db('sections').where({ id: access.membership.sectionId }).first('name')
+    sectionName = s?.name ?? null
+  }
+  const pick = partForSection(parts, assignmentPart, sectionName)
+  return pick && parts.includes(pick) ? pick : null
+}
+
+/** The drills of an ensemble (archived ones left out), oldest first. */
+export async function listEnsembleDrills (db: Knex, ensembleId: number): Promise<DrillListItem[]> {
+  const rows = await db('drills').where({ ensemble_id: ensembleId }).whereNull('archived_at')
+    .orderBy([{ column: 'created_at', order: 'asc' }, { column: 'id', order: 'asc' }])
+    .select('id', 'document', 'created_at')
+  return rows.map((r: Record<string, any>) => {
+    const d = JSON.parse(r.document) as DrillDocument
+    return {
+      id: r.id as number,
+      title: d.title,
+      key: d.key,
+      tempo: d.tempo,
+      a4: d.a4,
+      system: d.system,
+      tolerance: d.tolerance,
+      parts: d.parts.map(p => ({ name: p.name, instrument: p.instrument ?? null })),
+      chords: d.chords.length,
+      createdAt: r.created_at as string,
+    }
+  })
+}
+
+/** Largest drill file taken by the import. */
+export const MAX_DRILL_FILE_BYTES = 2 * 1024 * 1024
+
+/** Why a drill file could not be read (the route answers 415 for `not_a_drill`, else 400). */
+export interface DrillFileProblem { refused: string, message: string, details: Record<string, unknown> }
+
+/**
+ * A drill document from an uploaded file: a Standard MIDI File (starts with "MThd") or a drill
+ * JSON document; `title` replaces the document's own.
+ */
+export function drillFromFile (bytes: Uint8Array, title?: string): { document: DrillDocument } | DrillFileProblem {
+  const isMidi = bytes.length >= 4 && bytes[0] === 0x4d && bytes[1] === 0x54 && bytes[2] === 0x68 && bytes[3] === 0x64
+  try {
+    if (isMidi) return { document: midiToDrill(bytes, title ? { title } : {}) }
+    const text = new TextDecoder('utf-8', { fatal: false }).decode(bytes).replace(/^\uFEFF/, '').trim()
+    if (!text.startsWith('{')) return { refused: 'not_a_drill', message: 'Not a drill file', details: { expected: 'drill JSON or Standard MIDI File' } }
+    let json: Record<string, unknown>
+    try { json = JSON.parse(text) } catch (e) {
+      return { refused: 'invalid_json', message: 'Drill file is not valid JSON', details: { message: (e as Error).message } }
+    }
+    if (title) json = { ...json, title }
+    return { document: parseDrill(json) }
+  } catch (err) {
+    const e = err as { name?: string, code?: string, message?: string, path?: string | null, issues?: unknown[] }
+    if (e?.name === 'TuningError') {
+      return { refused: e.code ?? 'invalid_drill', message: 'Invalid drill file', details: { message: e.message, path: e.path ?? null, issues: e.issues ?? [] } }
+    }
+    throw err
   }
 }

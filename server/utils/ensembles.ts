@@ -1,5 +1,5 @@
 import type { Knex } from 'knex'
-import type { EnsembleRole, SessionUser } from './auth'
+import type { EnsembleRole, SessionUser } from '../../shared/types/user'
 
 export type EnsembleKind = 'choir' | 'band' | 'ensemble'
 

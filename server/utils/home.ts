@@ -1,20 +1,12 @@
 import type { Knex } from 'knex'
-import type { EnsembleRole, SessionUser } from './auth'
+import type { SessionUser } from '../../shared/types/user'
+import type { HomeData, HomeDue } from '../../shared/types/home'
 
 /** Window of the director's per-ensemble summary, in days. */
 export const SUMMARY_DAYS = 28
 /** Submitted assignments stay on the home page this long after their due date. */
 const DUE_KEEP_DAYS = 7
 const LIST_LIMIT = 50
-
-export interface HomeData {
-  user: SessionUser
-  memberships: { ensembleId: number, ensembleName: string, role: EnsembleRole, sectionId: number | null, sectionName: string | null }[]
-  due: { assignmentId: number, ensembleId: number, ensembleName: string, drillId: number, drillTitle: string, title: string | null, part: string | null, dueAt: string | null, submitted: boolean, overdue: boolean }[]
-  toReview: { takeId: number, ensembleName: string, playerName: string, sectionName: string | null, drillTitle: string, part: string, status: string, submittedAt: string, meanAbsCents: number | null }[]
-  recent: { takeId: number, drillTitle: string, part: string, status: string, createdAt: string, meanAbsCents: number | null, withinToleranceShare: number | null }[]
-  ensembleSummary: { ensembleId: number, ensembleName: string, takesAnalysed: number, meanAbsCents: number | null, withinToleranceShare: number | null, periodDays: number }[]
-}
 
 const num = (x: unknown): number | null => (x == null ? null : Number(x))
 
@@ -49,7 +41,7 @@ export async function loadHome (db: Knex, user: SessionUser, now = new Date()): 
     .whereIn('m.role', ['player', 'section_leader'])
     .whereNull('a.archived_at').whereNull('e.archived_at')
     .where(q => q.whereNull('a.section_id').orWhereRaw('a.section_id = m.section_id'))
-    .select('a.id', 'a.ensemble_id', 'e.name as ensemble_name', 'a.drill_id', 'd.title as drill_title', 'a.title', 'a.part', 'a.due_at', 's.name as section_name',
+    .select('a.id', 'a.ensemble_id', 'e.name as ensemble_name', 'a.drill_id', 'd.title as drill_title', 'd.tolerance', 'a.title', 'a.part', 'a.due_at', 's.name as section_name',
       db.raw('exists (select 1 from takes t where t.assignment_id = a.id and t.user_id = ? and t.withdrawn_at is null) as submitted', [uid]))
     .orderByRaw('a.due_at is null, a.due_at, a.id')
   const drillIds = [...new Set(dueRows.map((r: any) => r.drill_id as number))]
@@ -60,7 +52,7 @@ export async function loadHome (db: Knex, user: SessionUser, now = new Date()): 
   const due = dueRows
     .filter((r: any) => !r.submitted || !r.due_at || r.due_at >= keepSince)
     .slice(0, LIST_LIMIT)
-    .map((r: any) => ({
+    .map((r: any): HomeDue => ({
       assignmentId: r.id,
       ensembleId: r.ensemble_id,
       ensembleName: r.ensemble_name,
@@ -71,6 +63,7 @@ export async function loadHome (db: Knex, user: SessionUser, now = new Date()): 
       dueAt: r.due_at,
       submitted: Boolean(r.submitted),
       overdue: !r.submitted && r.due_at != null && r.due_at < nowIso,
+      tolerance: Number(r.tolerance),
     }))
 
   const toReview = await db('takes as t')
@@ -92,7 +85,7 @@ export async function loadHome (db: Knex, user: SessionUser, now = new Date()): 
     .whereNot('t.user_id', uid)
     .where(q => q.where('me.role', 'director').orWhere(q2 => q2.whereNotNull('me.section_id').whereRaw('pm.section_id = me.section_id')))
     .whereNotExists(db('reviews as r').whereRaw('r.take_id = t.id').select(db.raw('1')))
-    .select('t.id', 'e.name as ensemble_name', 'u.name as player_name', 'ps.name as section_name', 'd.title as drill_title', 't.part', 't.status', 't.created_at', 'an.mean_abs_cents')
+    .select('t.id', 'e.name as ensemble_name', 'u.name as player_name', 'ps.name as section_name', 'd.title as drill_title', 't.part', 't.status', 't.created_at', 'an.mean_abs_cents', db.raw('coalesce(an.tolerance, d.tolerance) as tolerance'))
     .orderBy([{ column: 't.created_at', order: 'desc' }, { column: 't.id', order: 'desc' }])
     .limit(LIST_LIMIT)
 
@@ -102,7 +95,7 @@ export async function loadHome (db: Knex, user: SessionUser, now = new Date()): 
       this.on('an.take_id', '=', 't.id').andOn('an.is_current', '=', db.raw('1'))
     })
     .where('t.user_id', uid).whereNull('t.withdrawn_at')
-    .select('t.id', 'd.title as drill_title', 't.part', 't.status', 't.created_at', 'an.mean_abs_cents', 'an.within_tolerance_share')
+    .select('t.id', 'd.title as drill_title', 't.part', 't.status', 't.created_at', 'an.mean_abs_cents', 'an.within_tolerance_share', db.raw('coalesce(an.tolerance, d.tolerance) as tolerance'))
     .orderBy([{ column: 't.created_at', order: 'desc' }, { column: 't.id', order: 'desc' }])
     .limit(10)
 
@@ -117,7 +110,7 @@ export async function loadHome (db: Knex, user: SessionUser, now = new Date()): 
     })
     .where('m.user_id', uid).where('m.role', 'director').whereNull('e.archived_at')
     .groupBy('e.id', 'e.name')
-    .select('e.id', 'e.name', db.raw('count(an.id) as analysed'), db.raw('avg(an.mean_abs_cents) as mean_abs'), db.raw('avg(an.within_tolerance_share) as within'))
+    .select('e.id', 'e.name', db.raw('count(an.id) as analysed'), db.raw('avg(an.mean_abs_cents) as mean_abs'), db.raw('avg(an.within_tolerance_share) as within'), db.raw('avg(an.tolerance) as tolerance'))
     .orderByRaw('e.name collate nocase')
 
   return {
@@ -126,14 +119,14 @@ export async function loadHome (db: Knex, user: SessionUser, now = new Date()): 
     due,
     toReview: toReview.map((r: any) => ({
       takeId: r.id, ensembleName: r.ensemble_name, playerName: r.player_name, sectionName: r.section_name, drillTitle: r.drill_title,
-      part: r.part, status: r.status, submittedAt: r.created_at, meanAbsCents: num(r.mean_abs_cents),
+      part: r.part, status: r.status, submittedAt: r.created_at, meanAbsCents: num(r.mean_abs_cents), tolerance: Number(r.tolerance),
     })),
     recent: recent.map((r: any) => ({
       takeId: r.id, drillTitle: r.drill_title, part: r.part, status: r.status, createdAt: r.created_at,
-      meanAbsCents: num(r.mean_abs_cents), withinToleranceShare: num(r.within_tolerance_share),
+      meanAbsCents: num(r.mean_abs_cents), withinToleranceShare: num(r.within_tolerance_share), tolerance: Number(r.tolerance),
     })),
     ensembleSummary: summary.map((r: any) => ({
-      ensembleId: r.id, ensembleName: r.name, takesAnalysed: Number(r.analysed), meanAbsCents: num(r.mean_abs), withinToleranceShare: num(r.within), periodDays: SUMMARY_DAYS,
+      ensembleId: r.id, ensembleName: r.name, takesAnalysed: Number(r.analysed), meanAbsCents: num(r.mean_abs), withinToleranceShare: num(r.within), periodDays: SUMMARY_DAYS, tolerance: num(r.tolerance),
     })),
   }
 }

@@ -6,7 +6,7 @@
 import { randomUUID } from 'node:crypto'
 import { PassThrough, Writable } from 'node:stream'
 import type { IncomingMessage } from 'node:http'
-import type { H3Event } from 'h3'
+import { isError, type H3Event } from 'h3'
 import formidable, { errors as formidableErrors } from 'formidable'
 import { detectFormat, headerDurationS, type AudioFormat } from '../analysis/decode'
 import { apiError } from './errors'
@@ -55,6 +55,11 @@ export interface UploadOptions {
   maxFieldsBytes?: number
   /** Longest take in seconds, refused here when the container's header states its length (WAV, FLAC). */
   maxDurationS?: number
+  /**
+   * Runs when the file part begins, with the text fields sent before it; nothing reaches the
+   * store until it resolves, and an error it throws (an h3 error) refuses the upload as it is.
+   */
+  beforeFile?: (fields: Record<string, string>) => Promise<void>
 }
 
 /** An object store as uploads need it (server/utils/storage.ts provides one). */
@@ -101,6 +106,7 @@ export async function receiveUpload (event: H3Event, store: UploadStore, opts: U
 
   let stored: StoredUpload | null = null
   let pending: { done: Promise<void>, abort: (why: Error) => void, key: string } | null = null
+  const fieldsBefore: Record<string, string> = {}
 
   const form = formidable({
     maxFiles: 1,
@@ -116,14 +122,17 @@ export async function receiveUpload (event: H3Event, store: UploadStore, opts: U
         return refusingWritable(new UploadRefused(400, 'unexpected_file', 'Unexpected file field', { field: f.fieldName ?? null, expected: opts.fileField }))
       }
       const key = `${opts.keyPrefix}${randomUUID()}`
+      const gate = opts.beforeFile ? opts.beforeFile({ ...fieldsBefore }) : null
+      gate?.catch(() => {}) // observed by the writable
       const sink = storeWritable(store, key, opts.maxDurationS, (format, bytes) => {
         stored = { key, bytes, format, mime: AUDIO_MIME[format], originalName: cleanName(f.originalFilename) }
-      })
+      }, gate)
       pending = { done: sink.done, abort: sink.abort, key }
       return sink.writable
     },
   })
   form.on('fileBegin', (name, file) => { (file as unknown as { fieldName: string }).fieldName = name })
+  form.on('field', (name, value) => { fieldsBefore[name] = String(value) })
 
   let fields: Record<string, string>
   try {
@@ -174,7 +183,7 @@ function refusingWritable (err: Error): Writable {
  * A writable that buffers the first bytes until the format is known, then streams into the
  * store. `done` settles when the object is complete (or the upload is aborted).
  */
-function storeWritable (store: UploadStore, key: string, maxDurationS: number | undefined, onStored: (format: AudioFormat, bytes: number) => void) {
+function storeWritable (store: UploadStore, key: string, maxDurationS: number | undefined, onStored: (format: AudioFormat, bytes: number) => void, gate: Promise<void> | null) {
   const controller = new AbortController()
   let head: Buffer[] = []
   let headBytes = 0
@@ -214,32 +223,20 @@ function storeWritable (store: UploadStore, key: string, maxDurationS: number | 
     return null
   }
 
+  // Nothing is written before the caller's check of the fields (if any) has passed.
+  let waiting = gate
+  const afterGate = (next: () => void, cb: (err?: Error | null) => void) => {
+    if (!waiting) return next()
+    waiting.then(() => { waiting = null; next() }, (err: Error) => { settle(err); cb(err) })
+  }
+
   const writable = new Writable({
     highWaterMark: 256 * 1024,
     write (chunk: Buffer, _enc, cb) {
-      total += chunk.length
-      if (!body) {
-        head.push(chunk)
-        headBytes += chunk.length
-        const err = decide(false)
-        return cb(err ?? undefined)
-      }
-      if (body.write(chunk)) cb()
-      else body.once('drain', () => cb())
+      afterGate(() => writeChunk(chunk, cb), cb)
     },
     final (cb) {
-      const err = body ? null : decide(true)
-      if (err) { settle(err); return cb(err) }
-      body!.end()
-      upload!.then(() => {
-        onStored(format!, total)
-        settle()
-        cb()
-      }, (e: Error) => {
-        const err = storeDown(e)
-        settle(err)
-        cb(err)
-      })
+      afterGate(() => finish(cb), cb)
     },
     destroy (err, cb) {
       // Cut off, refused or failed: stop the store's upload so no part or object stays behind.
@@ -251,6 +248,33 @@ function storeWritable (store: UploadStore, key: string, maxDurationS: number | 
       cb(err)
     },
   })
+
+  function writeChunk (chunk: Buffer, cb: (err?: Error | null) => void) {
+    total += chunk.length
+    if (!body) {
+      head.push(chunk)
+      headBytes += chunk.length
+      const err = decide(false)
+      return cb(err ?? undefined)
+    }
+    if (body.write(chunk)) cb()
+    else body.once('drain', () => cb())
+  }
+
+  function finish (cb: (err?: Error | null) => void) {
+    const err = body ? null : decide(true)
+    if (err) { settle(err); return cb(err) }
+    body!.end()
+    upload!.then(() => {
+      onStored(format!, total)
+      settle()
+      cb()
+    }, (e: Error) => {
+      const err = storeDown(e)
+      settle(err)
+      cb(err)
+    })
+  }
   return {
     writable,
     done,
@@ -259,12 +283,17 @@ function storeWritable (store: UploadStore, key: string, maxDurationS: number | 
 }
 
 function storeDown (e: Error): Error {
-  if (e instanceof UploadRefused) return e
+  if (e instanceof UploadRefused || isError(e)) return e
   console.error(`[uploads] object store refused the upload: ${e?.message ?? String(e)}`)
   return new UploadRefused(503, 'storage_unavailable', 'Storage unavailable')
 }
 
 function toHttpError (event: H3Event, err: unknown, opts: UploadOptions) {
+  if (isError(err)) {
+    // The caller's check refused the fields before the file was read: do not wait for the rest.
+    event.node.res.setHeader('Connection', 'close')
+    return err
+  }
   if (err instanceof UploadRefused) {
     // Refused before the body was read: do not wait for (or keep the socket for) the rest of it.
     if (err.code === 'too_long') event.node.res.setHeader('Connection', 'close')

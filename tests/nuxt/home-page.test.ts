@@ -2,7 +2,7 @@ import { describe, expect, it, vi } from 'vitest'
 import { mountSuspended, registerEndpoint } from '@nuxt/test-utils/runtime'
 import { createError } from 'h3'
 import HomePage from '~/pages/index.vue'
-import type { HomeData } from '~/composables/useHome'
+import type { HomeData } from '#shared/types/home'
 
 // Invented rows in the shape of GET /api/home; which one the fake route answers is set per test.
 const DAY = 86_400_000
@@ -62,10 +62,10 @@ describe('home page', () => {
       ...base,
       memberships: [{ ensembleId: 1, ensembleName: 'Fernhill Singers', role: 'player', sectionId: 2, sectionName: 'Alto' }],
       due: [
-        { assignmentId: 1, ensembleId: 1, ensembleName: 'Fernhill Singers', drillId: 3, drillTitle: 'Late drill', part: 'Alto', dueAt: new Date(Date.now() - 2 * DAY).toISOString(), submitted: false },
-        { assignmentId: 2, ensembleId: 1, ensembleName: 'Fernhill Singers', drillId: 4, drillTitle: 'Done drill', part: 'Alto', dueAt: new Date(Date.now() + 3 * DAY).toISOString(), submitted: true },
+        { assignmentId: 1, ensembleId: 1, ensembleName: 'Fernhill Singers', drillId: 3, drillTitle: 'Late drill', title: null, part: 'Alto', dueAt: new Date(Date.now() - 2 * DAY).toISOString(), submitted: false, overdue: true, tolerance: 10 },
+        { assignmentId: 2, ensembleId: 1, ensembleName: 'Fernhill Singers', drillId: 4, drillTitle: 'Done drill', title: null, part: 'Alto', dueAt: new Date(Date.now() + 3 * DAY).toISOString(), submitted: true, overdue: false, tolerance: 10 },
       ],
-      recent: [{ takeId: 9, drillTitle: 'Done drill', part: 'Alto', status: 'analysed', createdAt: new Date().toISOString(), meanAbsCents: 7.25, withinToleranceShare: 0.8 }],
+      recent: [{ takeId: 9, drillTitle: 'Done drill', part: 'Alto', status: 'analysed', createdAt: new Date().toISOString(), meanAbsCents: 7.25, withinToleranceShare: 0.8, tolerance: 10 }],
     })
     const due = w.get('section[aria-labelledby="home-due"]')
     const items = due.findAll('li')
@@ -85,6 +85,39 @@ describe('home page', () => {
     expect(w.find('#home-summary').exists()).toBe(false)
   })
 
+  it('grades each badge at the tolerance the server sends, not at a fixed ±10 ¢', async () => {
+    // 15 ¢ mean deviation: inside a ±25 ¢ drill tolerance, outside a ±10 ¢ one (the grading rule
+    // |c| ≤ tolerance is in tune is the product's own, see shared/deviation.ts).
+    const w = await mountHome({
+      ...base,
+      memberships: [{ ensembleId: 1, ensembleName: 'Fernhill Singers', role: 'player', sectionId: 2, sectionName: 'Alto' }],
+      recent: [
+        { takeId: 9, drillTitle: 'Wide drill', part: 'Alto', status: 'analysed', createdAt: new Date().toISOString(), meanAbsCents: 15, withinToleranceShare: 0.8, tolerance: 25 },
+        { takeId: 8, drillTitle: 'Tight drill', part: 'Alto', status: 'analysed', createdAt: new Date(Date.now() - DAY).toISOString(), meanAbsCents: 15, withinToleranceShare: 0.8, tolerance: 10 },
+      ],
+    })
+    const badges = w.get('section[aria-labelledby="home-recent"]').findAll('ul [data-token]')
+    expect(badges.map(b => b.attributes('data-token'))).toEqual(['in-tune', 'off-1'])
+  })
+
+  it('tells two assignments of the same drill apart by their titles', async () => {
+    const w = await mountHome({
+      ...base,
+      memberships: [{ ensembleId: 1, ensembleName: 'Fernhill Singers', role: 'player', sectionId: 2, sectionName: 'Alto' }],
+      due: [
+        { assignmentId: 1, ensembleId: 1, ensembleName: 'Fernhill Singers', drillId: 3, drillTitle: 'Held fifths', title: 'Week 1: slow', part: 'Alto', dueAt: new Date(Date.now() + DAY).toISOString(), submitted: false, overdue: false, tolerance: 10 },
+        { assignmentId: 2, ensembleId: 1, ensembleName: 'Fernhill Singers', drillId: 3, drillTitle: 'Held fifths', title: 'Week 2: at tempo', part: 'Alto', dueAt: new Date(Date.now() + 8 * DAY).toISOString(), submitted: false, overdue: false, tolerance: 10 },
+      ],
+    })
+    const items = w.get('section[aria-labelledby="home-due"]').findAll('li')
+    expect(items[0]!.text()).toContain('Week 1: slow')
+    expect(items[1]!.text()).toContain('Week 2: at tempo')
+    expect(items[0]!.text()).toContain('Held fifths')
+    // The links to the take form differ by assignment and say which one to a screen reader.
+    expect(items[0]!.find('a[href^="/takes/new"]').attributes('href')).toContain('assignmentId=1')
+    expect(items[1]!.find('a[href^="/takes/new"]').text()).toContain('for Week 2: at tempo, due')
+  })
+
   it('a director sees the summary and the review queue, with empty states', async () => {
     const w = await mountHome({
       ...base,
@@ -99,7 +132,7 @@ describe('home page', () => {
     const w = await mountHome({
       ...base,
       memberships: [{ ensembleId: 1, ensembleName: 'Fernhill Singers', role: 'section_leader', sectionId: 2, sectionName: 'Alto' }],
-      toReview: [{ takeId: 5, ensembleName: 'Fernhill Singers', playerName: 'Sam Player', sectionName: 'Alto', drillTitle: 'Held chords', part: 'Alto', status: 'analysed', submittedAt: new Date().toISOString(), meanAbsCents: 15 }],
+      toReview: [{ takeId: 5, ensembleName: 'Fernhill Singers', playerName: 'Sam Player', sectionName: 'Alto', drillTitle: 'Held chords', part: 'Alto', status: 'analysed', submittedAt: new Date().toISOString(), meanAbsCents: 15, tolerance: 10 }],
     })
     const table = w.get('section[aria-labelledby="home-review"] table')
     expect(table.findAll('th[scope="col"]').map(t => t.text())).toContain('Player')

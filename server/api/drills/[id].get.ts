@@ -1,10 +1,12 @@
 import { z } from 'zod'
 import { computeTargets } from '../../../shared/tuning/index'
+import type { DrillView } from '../../../shared/types/drill-view'
 
 const Query = z.object({ assignmentId: z.coerce.number().int().positive().optional() })
 
-// GET /api/drills/:id → { id, ensembleId, ensembleName, role, document, targets, preselectedPart }
-export default defineEventHandler(async (event) => {
+// GET /api/drills/:id → { id, ensembleId, ensembleName, role, document, targets, preselectedPart,
+// openAssignments (the caller's, each with its part), limits (of a take upload) }
+export default defineEventHandler(async (event): Promise<DrillView> => {
   const user = await requireUser(event)
   const { id } = validateParams(event, IdParams)
   const { assignmentId } = validateQuery(event, Query)
@@ -30,5 +32,7 @@ export default defineEventHandler(async (event) => {
     targets,
     targetsError,
     preselectedPart: await preselectedPart(db, access, assignmentId),
+    openAssignments: await openAssignmentsFor(db, user.id, drill.id),
+    limits: takeUploadLimits(),
   }
 })

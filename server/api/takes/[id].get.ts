@@ -1,9 +1,14 @@
-// GET /api/takes/:id → status, progress, error, report and what the caller may do with the take.
-export default defineEventHandler(async (event) => {
+import type { TakeDetail } from '../../../shared/types/take'
+
+// GET /api/takes/:id → status, progress, error, report, who played it and what the caller may do.
+export default defineEventHandler(async (event): Promise<TakeDetail> => {
   const user = await requireUser(event)
   const { id } = validateParams(event, IdParams)
   const db = useDb()
-  const access = await requireTakeForUser(db, user, id)
+  const access = await findTakeForUser(db, user, id)
+  if (!access) throw apiError(404, 'not_found', 'Take not found')
+  const detail = await takeDetail(db, access)
+  if (!detail) throw apiError(404, 'not_found', 'Take not found')
   setResponseHeader(event, 'Cache-Control', 'no-store')
-  return takeDetail(db, access)
+  return detail
 })

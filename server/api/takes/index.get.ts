@@ -1,16 +1,10 @@
-import { z } from 'zod'
+import { TakeListQuery } from '../../../shared/schemas/take'
+import type { TakeListPage } from '../../../shared/types/take'
 
-const Query = z.object({
-  player: z.union([z.literal('me'), z.coerce.number().int().positive()]).optional(),
-  drillId: z.coerce.number().int().positive().optional(),
-  assignmentId: z.coerce.number().int().positive().optional(),
-  page: z.coerce.number().int().positive().max(100_000).default(1),
-  pageSize: z.coerce.number().int().positive().max(100).default(20),
-})
-
-// GET /api/takes?player=me|<userId>&drillId=&assignmentId=&page=&pageSize= → { items, total, page, pageSize }
-export default defineEventHandler(async (event) => {
+// GET /api/takes?player=me|<userId>&drillId=&assignmentId=&withdrawn=only&page=&pageSize=
+// → { items, total, page, pageSize }: the takes the caller may see, newest first.
+export default defineEventHandler(async (event): Promise<TakeListPage> => {
   const user = await requireUser(event)
-  const q = validateQuery(event, Query)
+  const q = validateQuery(event, TakeListQuery)
   return listTakes(useDb(), user, q)
 })

@@ -1,30 +1,48 @@
-// POST /api/takes (multipart: drillId, part, optional assignmentId and idempotencyKey, file `audio`)
-// → 202 { id, status: 'queued' }; the same idempotency key again → 200 with the first take.
-export default defineEventHandler(async (event) => {
+import { TakeFields } from '../../../shared/schemas/take'
+import type { TakeCreated } from '../../../shared/types/take'
+
+const REFUSED = {
+  drill_not_found: [404, 'Drill not found'],
+  drill_archived: [409, 'Drill is archived'],
+  unknown_part: [400, 'That part is not in the drill'],
+  assignment_not_found: [404, 'Assignment not found'],
+  assignment_mismatch: [400, 'The assignment is for another drill'],
+} as const
+
+// POST /api/takes (multipart: drillId, part, optional assignmentId and idempotencyKey, THEN the
+// file `audio`) → 202 { id, status: 'queued' }; the same idempotency key again → 200 with the
+// first take. The fields and the caller's access are checked before any audio is stored.
+export default defineEventHandler(async (event): Promise<TakeCreated> => {
   const user = await requireUser(event)
-  const config = useRuntimeConfig().analysis
-  const store = await useObjectStore().catch(() => {
-    throw apiError(503, 'storage_unavailable', 'Storage unavailable')
-  })
+  const db = useDb()
+  const check = async (raw: Record<string, string>) => {
+    const parsed = TakeFields.safeParse(raw)
+    if (!parsed.success) throw apiError(400, 'invalid_input', 'Invalid input', { issues: formatIssues(parsed.error), order: 'text fields before the audio file' })
+    const out = await prepareTake(db, user, parsed.data)
+    if ('refused' in out) {
+      const { refused, ...details } = out
+      throw apiError(REFUSED[refused][0], refused, REFUSED[refused][1], details)
+    }
+    return out
+  }
+  const limits = takeUploadLimits()
+  const store = await useObjectStore().catch(() => { throw apiError(503, 'storage_unavailable', 'Storage unavailable') })
+  let prepared: PreparedTake | null = null
   const upload = await receiveUpload(event, store, {
-    fileField: 'audio',
-    maxBytes: Number(config.maxUploadBytes),
-    maxDurationS: Number(config.maxDurationS),
-    keyPrefix: 'takes/',
+    fileField: 'audio', keyPrefix: 'takes/', maxBytes: limits.maxBytes, maxDurationS: limits.maxDurationS,
+    beforeFile: async (fields) => { prepared = await check(fields) },
   })
+  prepared ??= await check(upload.fields)
+  if (!upload.file) throw apiError(400, 'missing_file', 'No audio file', { field: 'audio' })
   let take
   try {
-    take = await submitTake(useDb(), user, upload.fields, upload.file)
+    take = await createTake(db, user.id, prepared, upload.file)
   } catch (err) {
     await upload.discard() // refused after the file was stored: keep no orphan object
     throw err
   }
-  if (!take.created) {
-    await upload.discard()
-    setResponseStatus(event, 200)
-  } else {
-    wakeAnalysisPool()
-    setResponseStatus(event, 202)
-  }
+  if (!take.created) await upload.discard()
+  else wakeAnalysisPool()
+  setResponseStatus(event, take.created ? 202 : 200)
   return { id: take.id, status: take.status }
 })

@@ -5,7 +5,7 @@ import { computeTargets } from '#shared/tuning'
 import PracticeGrid from '~/components/practice/PracticeGrid.vue'
 import PracticePlayer from '~/components/practice/PracticePlayer.vue'
 import PracticeVolume from '~/components/practice/PracticeVolume.vue'
-import type { DrillTargets } from '~/composables/useDrill'
+import type { TargetsResult as DrillTargets } from '#shared/tuning/index'
 import { usePracticeStore } from '~/stores/practice'
 import { FakeAudioContext, type FakeOscillator } from './audio-mock'
 

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest'
 import { mountSuspended } from '@nuxt/test-utils/runtime'
 import TakeHoldTable from '~/components/takes/TakeHoldTable.vue'
-import type { TakeHold } from '~/composables/useTake'
+import type { ReportHold as TakeHold } from '#shared/types/take'
 
 // A just major third above C4 at A4 = 440 Hz: C4 = 261.6256 Hz (equal temperament), the pure
 // third 5/4 of it = 327.0320 Hz, which is 1200·log2(5/4) − 400 = −13.686 ¢ from the equal-tempered

@@ -46,6 +46,8 @@ describe('TakeHistory', () => {
       props: {
         current,
         tolerance: 10,
+        playerName: 'Ana Ruiz',
+        own: true,
         earlier: [
           { id: 22, createdAt: '2026-03-03T18:00:00Z', meanAbsCents: 9.4, withinToleranceShare: 0.5 },
           { id: 12, createdAt: '2026-02-24T18:00:00Z', meanAbsCents: 5.0, withinToleranceShare: 0.9 },
@@ -63,7 +65,7 @@ describe('TakeHistory', () => {
   })
 
   it('says it is the first take when there is no earlier one', async () => {
-    const w = await mountSuspended(TakeHistory, { props: { current, earlier: [], tolerance: 10 } })
+    const w = await mountSuspended(TakeHistory, { props: { current, earlier: [], tolerance: 10, playerName: 'Ana Ruiz', own: true } })
     expect(w.text()).toContain('first take of this part')
     expect(w.find('table').exists()).toBe(false)
   })
@@ -76,9 +78,36 @@ describe('TakeHistory without figures', () => {
         current: { id: 31, createdAt: '2026-03-11T18:00:00Z', meanAbsCents: null, withinToleranceShare: null },
         earlier: [{ id: 30, createdAt: '2026-03-10T18:00:00Z', meanAbsCents: 6.1, withinToleranceShare: 0.8 }],
         tolerance: 10,
+        playerName: 'Ana Ruiz',
+        own: true,
       },
     })
     expect(w.find('[data-testid="history-headline"]').exists()).toBe(false)
     expect(w.text()).not.toContain('NaN')
+  })
+})
+
+describe('TakeSummary drift with too few holds', () => {
+  it('says "not enough holds" instead of a number when the report has no drift', async () => {
+    const w = await mountSuspended(TakeSummary, {
+      props: { summary: { meanAbsCents: 2.1, withinToleranceShare: 1, driftCentsPerMin: null, driftUncertaintyCentsPerMin: null, holdsFound: 2, holdsExpected: 2 }, tolerance: 10, systemLabel: 'Equal', a4: 440 },
+    })
+    expect(w.find('[data-testid="summary-drift"]').text()).toBe('not enough holds')
+  })
+})
+
+describe('TakeHistory read by someone other than the player', () => {
+  const current = { id: 30, createdAt: '2026-03-10T18:00:00Z', meanAbsCents: 6.1, withinToleranceShare: 0.8 }
+  it('speaks of the player by name, never of "your" takes', async () => {
+    const first = await mountSuspended(TakeHistory, { props: { current, earlier: [], tolerance: 10, playerName: 'Ana Ruiz', own: false } })
+    expect(first.text()).toContain('This is Ana’s first take of this part')
+    expect(first.text()).not.toMatch(/\byour\b/i)
+    const later = await mountSuspended(TakeHistory, {
+      props: { current, earlier: [{ id: 22, createdAt: '2026-03-03T18:00:00Z', meanAbsCents: 9.4, withinToleranceShare: 0.5 }], tolerance: 10, playerName: 'Ana Ruiz', own: false },
+    })
+    // 9.4 − 6.1 = 3.3 ¢ closer than the previous take.
+    expect(later.find('[data-testid="history-headline"]').text()).toBe('Since Ana’s previous take, Ana is 3.3 ¢ closer (mean deviation).')
+    expect(later.find('h2').text()).toContain('Ana’s takes')
+    expect(later.text()).not.toMatch(/\byour\b/i)
   })
 })

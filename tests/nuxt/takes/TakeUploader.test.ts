@@ -38,8 +38,11 @@ function wav(bytes = 1024, name = 'alto.wav', type = 'audio/wav') {
   return new File([new Uint8Array(bytes)], name, { type })
 }
 
+// What the server's configuration allows (sent with the drill); made-up round figures.
+const LIMITS = { maxBytes: 200 * 1024 * 1024, maxDurationS: 1200 }
+
 async function mountWithFile(file = wav(), props: Record<string, unknown> = {}) {
-  const w = await mountSuspended(TakeUploader, { props: { drillId: 12, part: 'Alto', assignmentId: 5, ...props } })
+  const w = await mountSuspended(TakeUploader, { props: { drillId: 12, part: 'Alto', assignmentId: 5, limits: LIMITS, ...props } })
   // As the browser does when a file is chosen in the picker.
   const input = w.find('input[type="file"]')
   Object.defineProperty(input.element, 'files', { value: [file], configurable: true })
@@ -68,6 +71,8 @@ describe('TakeUploader', () => {
     expect(x.body!.get('assignmentId')).toBe('5')
     expect(String(x.body!.get('idempotencyKey'))).toMatch(UUID_V4)
     expect((x.body!.get('audio') as File).name).toBe('alto.wav')
+    // The text fields come first: the server checks them before it stores any audio.
+    expect([...x.body!.keys()].at(-1)).toBe('audio')
   })
 
   it('refuses a second submit while the first is in flight', async () => {
@@ -121,7 +126,8 @@ describe('TakeUploader', () => {
   ])('turns a %i (%s) from the server into a clear message', async (status, code, text) => {
     const w = await mountWithFile()
     await w.find('form').trigger('submit')
-    FakeXhr.all[0]!.respond(status, { statusCode: status, statusMessage: 'Refused', data: code ? { code } : {} })
+    // A 413 names the limit in its details, as the route sends it.
+    FakeXhr.all[0]!.respond(status, { statusCode: status, statusMessage: 'Refused', data: code ? { code, ...(code === 'too_long' ? { maxDurationS: 1200 } : {}) } : {} })
     await flushPromises()
     const err = w.find('[data-testid="upload-error"]')
     expect(err.attributes('role')).toBe('alert')
@@ -145,10 +151,12 @@ describe('TakeUploader', () => {
     expect(FakeXhr.all).toHaveLength(0)
     expect(w.text()).toContain('no audio in it')
 
-    w = await mountWithFile(wav(2048), { maxBytes: 1024 })
+    // The limit named is the one the server sent, not a figure copied into the form.
+    w = await mountWithFile(wav(2048), { limits: { maxBytes: 1024, maxDurationS: 300 } })
     await w.find('form').trigger('submit')
     expect(FakeXhr.all).toHaveLength(0)
-    expect(w.text()).toContain('larger than 200 MB')
+    expect(w.text()).toContain('larger than 1 KB')
+    expect(w.text()).toContain('up to 1 KB and 5 minutes')
 
     w = await mountWithFile(new File(['hello'], 'notes.txt', { type: 'text/plain' }))
     await w.find('form').trigger('submit')
@@ -158,7 +166,7 @@ describe('TakeUploader', () => {
 
   it('sends a recorded take given as a prop instead of a chosen file', async () => {
     const rec = new File([new Uint8Array(4096)], 'Alto-2026.webm', { type: 'audio/webm' })
-    const w = await mountSuspended(TakeUploader, { props: { drillId: 3, part: 'Alto', recorded: rec } })
+    const w = await mountSuspended(TakeUploader, { props: { drillId: 3, part: 'Alto', recorded: rec, limits: LIMITS } })
     expect(w.find('input[type="file"]').exists()).toBe(false)
     await w.find('form').trigger('submit')
     expect((FakeXhr.all[0]!.body!.get('audio') as File).name).toBe('Alto-2026.webm')

@@ -2,7 +2,7 @@ import { describe, expect, it, vi } from 'vitest'
 import { flushPromises } from '@vue/test-utils'
 import { mountSuspended } from '@nuxt/test-utils/runtime'
 import { SWATCHES } from '#shared/deviation'
-import type { TakeHold } from '~/composables/useTake'
+import type { ReportHold as TakeHold } from '#shared/types/take'
 
 // wavesurfer.js needs a real browser (media element, canvas); a stand-in records what the
 // component asks of it.

@@ -110,12 +110,25 @@ const takeDetail = (status: string, extra: Record<string, unknown> = {}) => ({
   id: 9, status, progress: status === 'analysed' ? 1 : 0.4, error: null, report: status === 'analysed' ? report : null,
   drill: { id: 3, title: 'One chord' }, part: 'Alto', player: { id: 4, name: 'Ada Example' }, assignmentId: null,
   createdAt: '2026-03-10T18:00:00Z', withdrawnAt: null, canWithdraw: true, canRestore: false, canRescore: status === 'analysed', canReanalyse: status === 'analysed',
-  audioUrl: '/takes/9/audio', mime: 'audio/webm', earlier: [], ...extra,
+  audioUrl: '/takes/9/audio', mime: 'audio/webm', bytes: 1000, originalName: null, earlier: [], viewerIsPlayer: true, ...extra,
 })
-registerEndpoint('/api/drills/3', () => ({ id: 3, ensembleId: 1, ensembleName: 'Harbour Singers', role: 'player', document: doc, targets: computeTargets(doc), targetsError: null, preselectedPart: 'Alto' }))
+// Made-up limits of the server's configuration.
+const limits = { maxBytes: 200 * 1024 * 1024, maxDurationS: 1200 }
+registerEndpoint('/api/drills/3', () => ({ id: 3, ensembleId: 1, ensembleName: 'Harbour Singers', role: 'player', document: doc, targets: computeTargets(doc), targetsError: null, preselectedPart: 'Alto', openAssignments: [], limits }))
+// The same drill with two open assignments for the Alto part and one for the Bass.
+registerEndpoint('/api/drills/6', () => ({
+  id: 6, ensembleId: 1, ensembleName: 'Harbour Singers', role: 'player', document: doc, targets: computeTargets(doc), targetsError: null, preselectedPart: 'Alto', limits,
+  openAssignments: [
+    { id: 71, title: 'Week 1: slow', part: 'Alto', dueAt: '2026-03-12T18:00:00Z', submitted: false },
+    { id: 72, title: null, part: 'Alto', dueAt: '2026-03-19T18:00:00Z', submitted: false },
+    { id: 73, title: 'Bass line', part: 'Bass', dueAt: null, submitted: false },
+  ],
+}))
 let current = takeDetail('analysed')
 registerEndpoint('/api/takes/9', () => current)
 registerEndpoint('/api/takes/10', () => ({ ...takeDetail('analysing'), id: 10 }))
+// Ana's take, opened by her director.
+registerEndpoint('/api/takes/11', () => takeDetail('analysed', { id: 11, player: { id: 8, name: 'Ana Ruiz' }, viewerIsPlayer: false, canWithdraw: false }))
 
 function mockBrowserOnly() {
   vi.doMock('wavesurfer.js', () => ({ default: { create: () => ({ on: () => {}, destroy: () => {}, playPause: () => {} }) } }))
@@ -141,6 +154,16 @@ describe('pages/takes/[id]', () => {
     expect(w.text()).toContain('first take of this part')
     expect(w.text()).toContain('Score again')
     expect(w.text()).toContain('Withdraw this take')
+    expect(w.text()).toContain('Record another take of this part')
+  })
+
+  it('speaks of the player by name to a director, and offers recording only to the player', async () => {
+    mockBrowserOnly()
+    const w = await mountSuspended(TakePage, { route: '/takes/11' })
+    await flushPromises()
+    expect(w.text()).toContain('This is Ana’s first take of this part')
+    expect(w.text()).not.toContain('This is your first take')
+    expect(w.text()).not.toContain('Record another take')
   })
 
   it('shows the live status panel while the take is analysed', async () => {
@@ -156,10 +179,17 @@ describe('pages/takes/[id]', () => {
   })
 })
 
+let restored: number[] = []
+registerEndpoint('/api/takes/61/restore', { method: 'POST', handler: () => { restored.push(61); return { id: 61, withdrawnAt: null } } })
 registerEndpoint('/api/takes', (event) => {
-  const page = Number(new URL(event.node.req.url!, 'http://x').searchParams.get('page') || 1)
+  const params = new URL(event.node.req.url!, 'http://x').searchParams
+  const page = Number(params.get('page') || 1)
+  if (params.get('withdrawn') === 'only') {
+    const items = restored.includes(61) ? [] : [{ id: 61, drillId: 5, drillTitle: 'Held triads in E♭', part: 'Alto', playerName: 'Ben Oduya', status: 'analysed', createdAt: '2026-03-08T18:00:00Z', meanAbsCents: 9, withinToleranceShare: 0.5, withdrawn: true, withdrawnAt: '2026-03-09T10:00:00Z', assignmentId: null, canRestore: true }]
+    return { items, total: items.length, page: 1, pageSize: 20 }
+  }
   return {
-    items: [{ id: 40 + page, drillId: 5, drillTitle: 'Held triads in E♭', part: 'Alto', playerName: 'Ada Example', status: 'analysed', createdAt: '2026-03-10T18:00:00Z', meanAbsCents: 4.25, withinToleranceShare: 0.75, withdrawn: false }],
+    items: [{ id: 40 + page, drillId: 5, drillTitle: 'Held triads in E♭', part: 'Alto', playerName: 'Ada Example', status: 'analysed', createdAt: '2026-03-10T18:00:00Z', meanAbsCents: 4.25, withinToleranceShare: 0.75, withdrawn: false, withdrawnAt: null, assignmentId: null, canRestore: false }],
     total: 45, page, pageSize: 20,
   }
 })
@@ -180,9 +210,27 @@ describe('pages/takes/index', () => {
     expect(w.find('a[rel="prev"]').exists()).toBe(false)
     expect(w.find('caption').text()).toContain('45 takes')
   })
+
+  it('gives a director the withdrawn takes with a Restore button for each', async () => {
+    restored = []
+    const w = await mountSuspended(TakesPage, { route: '/takes?withdrawn=only' })
+    await flushPromises()
+    expect(w.find('h1').text()).toBe('Withdrawn takes')
+    expect((w.find('#filter-withdrawn').element as HTMLSelectElement).value).toBe('only')
+    const button = w.find('tbody tr button')
+    expect(button.text()).toContain('Restore')
+    expect(button.text()).toContain('Ben Oduya’s take of Held triads in E♭')
+    await button.trigger('click')
+    await flushPromises()
+    expect(restored).toEqual([61])
+    await new Promise(r => setTimeout(r, 50))
+    await flushPromises()
+    expect(w.find('[data-testid="restore-message"]').text()).toContain('Restored: Ben Oduya’s take')
+    expect(w.text()).toContain('No take is withdrawn')
+  })
 })
 
-registerEndpoint('/api/drills/4', () => ({ id: 4, ensembleId: 1, ensembleName: 'Harbour Singers', role: 'player', document: { ...doc, system: { name: 'scala', seventh: 'harmonic', fraction: '1/4' } }, targets: null, targetsError: { code: 'scala_missing', message: 'The scala system needs the text of a Scala .scl file' }, preselectedPart: null }))
+registerEndpoint('/api/drills/4', () => ({ id: 4, ensembleId: 1, ensembleName: 'Harbour Singers', role: 'player', document: { ...doc, system: { name: 'scala', seventh: 'harmonic', fraction: '1/4' } }, targets: null, targetsError: { code: 'scala_missing', message: 'The scala system needs the text of a Scala .scl file' }, preselectedPart: null, openAssignments: [], limits }))
 
 describe('pages/drills/[id]', () => {
   it('shows the voicing in the drill’s system and recomputes it for another system', async () => {
@@ -226,6 +274,28 @@ describe('pages/takes/new', () => {
     expect(w2.text()).toContain('no part called “Tenor”')
     // Falls back to the part of the player's section.
     expect((w2.find('#take-part').element as HTMLSelectElement).value).toBe('Alto')
+  })
+
+  it('lets the player choose between two open assignments of the drill and part', async () => {
+    const w = await mountSuspended(NewTakePage, { route: '/takes/new?drillId=6&part=Alto' })
+    await flushPromises()
+    const choice = w.find('[data-testid="take-assignment-choice"]')
+    expect(choice.exists()).toBe(true)
+    // Told apart by title, else by due date; plus "none" for a practice take.
+    expect(choice.text()).toContain('Week 1: slow')
+    expect(choice.findAll('input[type="radio"]')).toHaveLength(3)
+    expect(choice.text()).toContain('Choose one before sending')
+    expect(w.find('[data-testid="take-uploader"] button[type="submit"]').attributes('disabled')).toBeDefined()
+    await choice.findAll('input[type="radio"]')[1]!.setValue(true)
+    await flushPromises()
+    expect(w.find('[data-testid="take-uploader"] button[type="submit"]').attributes('disabled')).toBeUndefined()
+  })
+
+  it('links the take to the one open assignment of the chosen part without asking', async () => {
+    const w = await mountSuspended(NewTakePage, { route: '/takes/new?drillId=6&part=Bass' })
+    await flushPromises()
+    expect(w.find('[data-testid="take-assignment-choice"]').exists()).toBe(false)
+    expect(w.find('[data-testid="take-assignment"]').text()).toContain('“Bass line”')
   })
 
   it('asks for a drill when none is given', async () => {

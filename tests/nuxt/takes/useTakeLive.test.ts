@@ -2,7 +2,8 @@ import { afterEach, beforeEach, describe, expect, it, vi } from 'vitest'
 import { defineComponent, h } from 'vue'
 import { flushPromises } from '@vue/test-utils'
 import { mountSuspended, registerEndpoint } from '@nuxt/test-utils/runtime'
-import { useTakeLive, type TakeLiveState } from '~/composables/useTake'
+import type { TakeLiveState } from '#shared/types/take'
+import { useTakeLive } from '~/composables/useTake'
 
 class FakeEventSource {
   static all: FakeEventSource[] = []

@@ -7,7 +7,7 @@ export default defineEventHandler(async (event) => {
   const user = await requireUser(event)
   const { id } = validateParams(event, IdParams)
   const db = useDb()
-  await requireTakeForUser(db, user, id)
+  if (!await findTakeForUser(db, user, id)) throw apiError(404, 'not_found', 'Take not found')
 
   const stream = createEventStream(event)
   let closed = false

@@ -1,10 +1,11 @@
 import { z } from 'zod'
+import type { DrillImportResult } from '../../../../../shared/types/drill-view'
 
 const Fields = z.object({ title: z.string().trim().max(120).optional() })
 
 // POST /api/ensembles/:id/drills/import (multipart: `file` = drill JSON or .mid, optional `title`)
 // → 201 { id, parts: [names], chords: N } (directors).
-export default defineEventHandler(async (event) => {
+export default defineEventHandler(async (event): Promise<DrillImportResult> => {
   const user = await requireUser(event)
   const { id } = validateParams(event, IdParams)
   const db = useDb()
@@ -13,7 +14,9 @@ export default defineEventHandler(async (event) => {
   const fields = Fields.safeParse(form.fields)
   if (!fields.success) throw apiError(400, 'invalid_input', 'Invalid input', { issues: formatIssues(fields.error) })
   if (!form.file || form.file.bytes.length === 0) throw apiError(400, 'missing_file', 'No drill file', { field: 'file' })
-  const doc = drillFromFile(form.file.bytes, fields.data.title || undefined)
+  const read = drillFromFile(form.file.bytes, fields.data.title || undefined)
+  if ('refused' in read) throw apiError(read.refused === 'not_a_drill' ? 415 : 400, read.refused, read.message, read.details)
+  const doc = read.document
   let saved
   try {
     saved = await saveDrill(db, id, doc, user.id)

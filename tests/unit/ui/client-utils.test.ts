@@ -1,9 +1,8 @@
 import { describe, expect, it } from 'vitest'
-import { safeRedirect } from '../../../composables/useSafeRedirect'
-import { apiProblem, tooManyAttemptsMessage } from '../../../composables/useApiError'
-import { formatAbsolute, formatRelative } from '../../../composables/useNow'
-import { linkifyParts } from '../../../composables/useDevMail'
-import { routePatternToRegExp } from '../../../composables/useRouteExists'
+import { routePatternToRegExp, safeRedirect } from '../../../utils/routes'
+import { apiProblem, tooManyAttemptsMessage } from '../../../utils/api-error'
+import { formatAbsolute, formatRelative } from '../../../utils/time'
+import { linkifyParts } from '../../../utils/linkify'
 
 describe('safeRedirect (no open redirect after sign-in)', () => {
   it.each([

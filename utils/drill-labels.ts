@@ -1,0 +1,44 @@
+// Words for tuning systems and note names, as the drill and take screens show them.
+import type { SystemName, SystemOptions } from '#shared/drill/schema'
+
+/** Human names of the tuning systems (ours; the maths is the trade's). */
+export const SYSTEM_LABELS: Record<SystemName, string> = {
+  'equal': 'Equal temperament',
+  'just-root': 'Just, from each chord root',
+  'just-tonic': 'Just, from the tonic',
+  'just-common': 'Just, common tones held',
+  'pythagorean': 'Pythagorean',
+  'meantone': 'Meantone',
+  'scala': 'Scala scale',
+}
+
+/** A short description of a system with the options that matter to it. */
+export function describeSystem(system: SystemOptions | SystemName | string | null | undefined): string {
+  if (!system) return 'Unknown system'
+  if (typeof system === 'string') return SYSTEM_LABELS[system as SystemName] ?? system
+  const base = SYSTEM_LABELS[system.name] ?? system.name
+  switch (system.name) {
+    case 'just-root':
+    case 'just-common':
+      return `${base} (${system.seventh === '5-limit' ? '5-limit sevenths' : 'harmonic sevenths'})`
+    case 'just-tonic':
+      return system.tonic ? `${base} ${system.tonic}` : base
+    case 'pythagorean':
+      return [base, system.start && `from ${system.start}`, system.wolf && `wolf above ${system.wolf}`].filter(Boolean).join(', ')
+    case 'meantone':
+      return `${String(system.fraction ?? '1/4').replace(/\s+/g, '')}-comma ${base.toLowerCase()}`
+    default:
+      return base
+  }
+}
+
+const ACCIDENTALS: Record<string, string> = { 'bb': '𝄫', 'b': '♭', '#': '♯', '##': '𝄪', 'x': '𝄪', '': '' }
+
+/** A note name with real accidentals for display: "Bb3" → "B♭3", "F#4" → "F♯4"; anything else unchanged. */
+export function prettyNote(name: string | null | undefined): string {
+  if (!name) return '—'
+  const m = /^([A-Ga-g])(bb|b|##|#|x)?(-?\d+)?$/.exec(name.trim())
+  if (!m) return name
+  return `${m[1]!.toUpperCase()}${ACCIDENTALS[m[2] ?? '']}${m[3] ?? ''}`
+}
+
