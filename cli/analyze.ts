@@ -13,7 +13,7 @@ Finds every held note of one part in a recorded take, measures its steady pitch 
 against the targets of a tuning system (cents from target and from equal temperament).
 
 Options:
-  --audio FILE       the take: WAV, FLAC, MP3, Ogg Vorbis, Ogg Opus or WebM/Opus
+  --audio FILE       the take: WAV, FLAC, MP3, Ogg Vorbis, Ogg Opus, WebM/Opus or MP4/AAC (.m4a)
   --drill FILE       drill document (.json) or Standard MIDI File (.mid, .midi)
   --part NAME        the part that was played or sung (as named in the drill)
 ${SYSTEM_HELP}

@@ -6,38 +6,15 @@
 // lock left by the previous process goes back to the queue. Failures of the engine on the audio
 // itself (AnalysisError) fail the take with the engine's code and never retry; anything else
 // (a crashed worker, the store briefly down) retries with backoff. The upload is never deleted.
-import { EventEmitter } from 'node:events'
-import { existsSync } from 'node:fs'
 import { hostname } from 'node:os'
-import { dirname, join, resolve } from 'node:path'
 import { randomBytes } from 'node:crypto'
 import { Worker } from 'node:worker_threads'
-import type { Readable } from 'node:stream'
 import type { Knex } from 'knex'
-import { ANALYSE_TAKE_JOB, claimJob, completeJob, enqueueJob, failJob, requeueStaleJobs, setJobProgress, type Job } from './jobs'
-import type { TakeLiveState, TakeStatusName } from '../../shared/types/take'
-import { loadTakeForAnalysis, markTakeAnalysing, markTakeFailed, markTakeQueued, analysisErrorMessage, saveAnalysis } from './take-analysis'
-import type { ObjectStore } from './storage'
+import { ANALYSE_TAKE_JOB, claimJob, completeJob, failJob, requeueStaleJobs, setJobProgress, type Job } from './jobs'
+import { loadTakeForAnalysis, markTakeAnalysing, markTakeFailed, markTakeQueued, analysisErrorMessage, reconcileTakeStatuses, saveAnalysis } from './take-analysis'
+import { emitTakeEvent } from './take-events'
+import { readAll, type ObjectStore } from './storage'
 import type { WorkerJob, WorkerMessage } from '../analysis/worker'
-
-/** A take's live state, as the event stream sends it. */
-export interface TakeEvent extends TakeLiveState {
-  takeId: number
-}
-
-const events = new EventEmitter()
-events.setMaxListeners(0)
-
-/** Listens to a take's status and progress; returns the function that stops listening. */
-export function onTakeEvent (takeId: number, listener: (e: TakeEvent) => void): () => void {
-  const name = `take:${takeId}`
-  events.on(name, listener)
-  return () => { events.off(name, listener) }
-}
-
-function emitTake (e: TakeEvent) {
-  events.emit(`take:${e.takeId}`, e)
-}
 
 export interface PoolOptions {
   db: () => Knex
@@ -74,18 +51,6 @@ const PROGRESS_WRITE_MS = 500
 const HEARTBEAT_MS = 15_000
 const STALE_LOCK_MS = 120_000
 
-/** Reads a whole object stream into one buffer. */
-async function readAll (body: Readable): Promise<Uint8Array> {
-  const chunks: Uint8Array[] = []
-  let n = 0
-  for await (const c of body) { chunks.push(c as Uint8Array); n += (c as Uint8Array).length }
-  // A buffer of its own (never a slice of Node's shared pool): it is transferred to the worker.
-  const out = new Uint8Array(n)
-  let at = 0
-  for (const c of chunks) { out.set(c, at); at += c.length }
-  return out
-}
-
 export class AnalysisPool {
   private slots: Slot[] = []
   private stopping = false
@@ -105,7 +70,7 @@ export class AnalysisPool {
     const db = this.o.db()
     // Whatever is still locked now was left by a process that stopped: this one holds no lock yet.
     const { requeued, failed } = await requeueStaleJobs(db, { olderThanMs: 0 })
-    await this.reconcile(db)
+    await reconcileTakeStatuses(db)
     if (requeued || failed) console.info(`[analysis] ${requeued} interrupted job(s) back in the queue, ${failed} given up`)
     for (let i = 0; i < Math.max(1, this.o.workers); i++) {
       const slot: Slot = { index: i, lockId: `${this.tag}:${i}`, worker: null, ready: null, running: null, failedStarts: 0 }
@@ -178,7 +143,7 @@ export class AnalysisPool {
     if (!r || m.type === 'ready' || m.jobId !== r.job.id) return
     if (m.type === 'progress') {
       r.progress = m.progress
-      emitTake({ takeId: r.takeId, status: 'analysing', progress: m.progress, error: null })
+      emitTakeEvent({ takeId: r.takeId, status: 'analysing', progress: m.progress, error: null })
       const now = Date.now()
       if (now - r.lastWrite >= PROGRESS_WRITE_MS) {
         r.lastWrite = now
@@ -236,7 +201,7 @@ export class AnalysisPool {
         return
       }
       await markTakeAnalysing(db, takeId, drill.version)
-      emitTake({ takeId, status: 'analysing', progress: 0, error: null })
+      emitTakeEvent({ takeId, status: 'analysing', progress: 0, error: null })
 
       const store = await this.o.store()
       const obj = await store.get(take.objectKey)
@@ -278,7 +243,7 @@ export class AnalysisPool {
           if (!await completeJob(trx, job.id, slot.lockId, { analysisId: id, ...timing })) throw new LostLock()
           return id
         }).catch((err) => { if (err instanceof LostLock) return null; throw err })
-        if (saved != null) emitTake({ takeId, status: 'analysed', progress: 1, error: null })
+        if (saved != null) emitTakeEvent({ takeId, status: 'analysed', progress: 1, error: null })
       } else if (m.type === 'error' && m.analysis) {
         await this.giveUp(slot, job, takeId, m.code, m.message)
       } else if (m.type === 'error') {
@@ -305,7 +270,7 @@ export class AnalysisPool {
       await markTakeFailed(trx, takeId, code, text)
       return true
     })
-    if (ok) emitTake({ takeId, status: 'failed', progress: 0, error: { code, message: text } })
+    if (ok) emitTakeEvent({ takeId, status: 'failed', progress: 0, error: { code, message: text } })
   }
 
   /** Something other than the audio went wrong: back in the queue after a backoff, failed at the last attempt. */
@@ -318,71 +283,9 @@ export class AnalysisPool {
       if (r === 'failed') await markTakeFailed(trx, takeId, 'analysis_error')
       return r
     })
-    if (outcome === 'requeued') emitTake({ takeId, status: 'queued', progress: 0, error: null })
-    if (outcome === 'failed') emitTake({ takeId, status: 'failed', progress: 0, error: { code: 'analysis_error', message: analysisErrorMessage('analysis_error') } })
-  }
-
-  /**
-   * Brings take statuses in line with their jobs after a restart: a take whose job is queued is
-   * queued, one whose job was given up is failed, and one left without any job gets one.
-   */
-  private async reconcile (db: Knex) {
-    const open = await db('takes as t')
-      .whereIn('t.status', ['queued', 'analysing'])
-      .select('t.id', 't.status',
-        db.raw('(select j.status from jobs j where j.take_id = t.id order by j.id desc limit 1) as job_status'))
-    for (const t of open as { id: number, status: TakeStatusName, job_status: string | null }[]) {
-      if (t.job_status === 'queued' && t.status !== 'queued') await markTakeQueued(db, t.id)
-      else if (t.job_status === 'failed') await markTakeFailed(db, t.id, 'analysis_interrupted')
-      else if (t.job_status == null || t.job_status === 'done') {
-        await db.transaction(async (trx) => {
-          await enqueueJob(trx, ANALYSE_TAKE_JOB, { takeId: t.id }, { takeId: t.id })
-          await markTakeQueued(trx, t.id)
-        })
-      }
-    }
+    if (outcome === 'requeued') emitTakeEvent({ takeId, status: 'queued', progress: 0, error: null })
+    if (outcome === 'failed') emitTakeEvent({ takeId, status: 'failed', progress: 0, error: { code: 'analysis_error', message: analysisErrorMessage('analysis_error') } })
   }
 }
 
 class LostLock extends Error {}
-
-/**
- * Where the worker bundle is: next to the server entry in a built app (.output/server), else the
- * development build under .nuxt/. DRIFTLINE_ANALYSIS_WORKER overrides both.
- */
-export function findWorkerFile (): string | null {
-  const candidates = [
-    process.env.DRIFTLINE_ANALYSIS_WORKER,
-    process.argv[1] ? join(dirname(resolve(process.argv[1])), 'analysis-worker.mjs') : undefined,
-    resolve('.output/server/analysis-worker.mjs'),
-  ].filter((p): p is string => Boolean(p))
-  return candidates.find(p => existsSync(p)) ?? null
-}
-
-let pool: AnalysisPool | null = null
-
-/** Starts the process's pool (once). */
-export async function startAnalysisPool (o: PoolOptions): Promise<AnalysisPool> {
-  if (!pool) {
-    pool = new AnalysisPool(o)
-    await pool.start()
-  }
-  return pool
-}
-
-/** Tells the pool a job was queued; harmless when no pool runs (it polls the queue anyway). */
-export function wakeAnalysisPool (): void {
-  pool?.wake()
-}
-
-/** Stops the pool (on shutdown). */
-export async function stopAnalysisPool (): Promise<void> {
-  const p = pool
-  pool = null
-  await p?.stop()
-}
-
-/** The running pool, or null. */
-export function analysisPool (): AnalysisPool | null {
-  return pool
-}

@@ -1,4 +1,5 @@
 import { resolve } from 'node:path'
+import type { Readable } from 'node:stream'
 import { createObjectStore, startEmbeddedS3, type EmbeddedS3, type ObjectStore } from '../services/object-store'
 
 export type { ObjectStore, ObjectBody, ObjectInfo } from '../services/object-store'
@@ -72,4 +73,16 @@ export function normaliseRange (header: string | undefined, size: number | null)
   const end = m[2] === '' ? size - 1 : Math.min(Number(m[2]), size - 1)
   if (end < start) return null
   return `bytes=${start}-${end}`
+}
+
+/** Reads a whole object stream into one buffer. */
+export async function readAll (body: Readable): Promise<Uint8Array> {
+  const chunks: Uint8Array[] = []
+  let n = 0
+  for await (const c of body) { chunks.push(c as Uint8Array); n += (c as Uint8Array).length }
+  // A buffer of its own (never a slice of Node's shared pool): it is transferred to the worker.
+  const out = new Uint8Array(n)
+  let at = 0
+  for (const c of chunks) { out.set(c, at); at += c.length }
+  return out
 }

@@ -1,11 +1,12 @@
 // What the analysis pool reads and writes for a take: the job's inputs, the take's status as the
 // job moves, and the finished analysis (report, measurement and a row per hold).
 import type { Knex } from 'knex'
-import type { TakeReport } from '../../shared/types/take'
+import type { TakeReport, TakeStatusName } from '../../shared/types/take'
 import type { SystemOptions } from '../../shared/drill/schema'
 import type { Measurement } from '../analysis/types'
 import { ANALYSIS_ERROR_MESSAGE } from '../analysis/errors'
 import { loadDrill } from './drills'
+import { ANALYSE_TAKE_JOB, enqueueJob } from './jobs'
 import { toTake } from './takes'
 
 /** Messages for failures: the engine's codes plus the pool's own. */
@@ -119,4 +120,25 @@ export async function saveAnalysis (trx: Knex.Transaction, input: {
     updated_at: now,
   })
   return analysisId
+}
+
+/**
+ * Brings take statuses in line with their jobs after a restart: a take whose job is queued is
+ * queued, one whose job was given up is failed, and one left without any job gets one.
+ */
+export async function reconcileTakeStatuses (db: Knex): Promise<void> {
+  const open = await db('takes as t')
+    .whereIn('t.status', ['queued', 'analysing'])
+    .select('t.id', 't.status',
+      db.raw('(select j.status from jobs j where j.take_id = t.id order by j.id desc limit 1) as job_status'))
+  for (const t of open as { id: number, status: TakeStatusName, job_status: string | null }[]) {
+    if (t.job_status === 'queued' && t.status !== 'queued') await markTakeQueued(db, t.id)
+    else if (t.job_status === 'failed') await markTakeFailed(db, t.id, 'analysis_interrupted')
+    else if (t.job_status == null || t.job_status === 'done') {
+      await db.transaction(async (trx) => {
+        await enqueueJob(trx, ANALYSE_TAKE_JOB, { takeId: t.id }, { takeId: t.id })
+        await markTakeQueued(trx, t.id)
+      })
+    }
+  }
 }

@@ -8,25 +8,12 @@ import { PassThrough, Writable } from 'node:stream'
 import type { IncomingMessage } from 'node:http'
 import { isError, type H3Event } from 'h3'
 import formidable, { errors as formidableErrors } from 'formidable'
-import { detectFormat, headerDurationS, type AudioFormat } from '../analysis/decode'
+import { headerDurationS, type AudioFormat } from '../analysis/decode'
 import { apiError } from './errors'
+import { AUDIO_MIME, SNIFF_BYTES, sniffAudio } from './audio-sniff'
 
-/** Bytes read before the format is decided (enough for any WAV/FLAC/Ogg/WebM header). */
-const SNIFF_BYTES = 256 * 1024
-/** An ID3 tag in front of MP3 audio may be large (cover art); sniffing reads past it, up to this. */
-const SNIFF_MAX_BYTES = 16 * 1024 * 1024
 /** Room for the multipart framing and text fields around the file. */
-const FORM_OVERHEAD_BYTES = 256 * 1024
-
-export const AUDIO_MIME: Readonly<Record<AudioFormat, string>> = {
-  'wav': 'audio/wav',
-  'flac': 'audio/flac',
-  'mp3': 'audio/mpeg',
-  'ogg-vorbis': 'audio/ogg',
-  'ogg-opus': 'audio/ogg; codecs=opus',
-  'webm-opus': 'audio/webm; codecs=opus',
-  'mp4-aac': 'audio/mp4',
-}
+export const FORM_OVERHEAD_BYTES = 256 * 1024
 
 export interface StoredUpload {
   /** Opaque object key (random, never from the file name). */
@@ -68,24 +55,11 @@ export interface UploadStore {
   delete: (key: string) => Promise<void>
 }
 
-class UploadRefused extends Error {
+/** A refusal with its status and stable code, raised while the body is read. */
+export class UploadRefused extends Error {
   constructor (readonly status: number, readonly code: string, message: string, readonly details: Record<string, unknown> = {}) {
     super(message)
   }
-}
-
-/** Sniffs the format of the first bytes; null while more bytes are needed to tell. */
-export function sniffAudio (head: Uint8Array, complete: boolean): AudioFormat | 'unknown' | null {
-  const format = detectFormat(head)
-  if (format) return format
-  if (complete) return 'unknown'
-  // An ID3v2 header says how long the tag is: read past it before deciding.
-  if (head.length >= 10 && head[0] === 0x49 && head[1] === 0x44 && head[2] === 0x33) {
-    const size = ((head[6]! & 0x7f) << 21) | ((head[7]! & 0x7f) << 14) | ((head[8]! & 0x7f) << 7) | (head[9]! & 0x7f)
-    const need = Math.min(SNIFF_MAX_BYTES, 10 + size + 10 + 64 * 1024)
-    return head.length < need ? null : 'unknown'
-  }
-  return head.length < SNIFF_BYTES ? null : 'unknown'
 }
 
 /**
@@ -152,7 +126,7 @@ export async function receiveUpload (event: H3Event, store: UploadStore, opts: U
     // delete of a missing key is a no-op in S3).
     const key = (pending as { key: string } | null)?.key
     if (key && (stored || p)) await store.delete(key).catch(e => console.warn(`[uploads] could not delete ${key}: ${(e as Error).message}`))
-    throw toHttpError(event, err, opts)
+    throw uploadHttpError(event, err, opts)
   }
   const file = stored as StoredUpload | null
   return {
@@ -164,7 +138,8 @@ export async function receiveUpload (event: H3Event, store: UploadStore, opts: U
   }
 }
 
-function cleanName (name: string | null | undefined): string | null {
+/** A client's file name for display only: no path, no control characters, at most 255 characters. */
+export function cleanName (name: string | null | undefined): string | null {
   if (!name) return null
   // Display only: strip path parts and control characters, cap the length.
   const base = String(name).split(/[\\/]/).pop() ?? ''
@@ -172,7 +147,8 @@ function cleanName (name: string | null | undefined): string | null {
   return clean || null
 }
 
-function refusingWritable (err: Error): Writable {
+/** A writable that refuses every byte with `err` (an unexpected file part). */
+export function refusingWritable (err: Error): Writable {
   return new Writable({
     write (_chunk, _enc, cb) { cb(err) },
     final (cb) { cb(err) },
@@ -288,7 +264,8 @@ function storeDown (e: Error): Error {
   return new UploadRefused(503, 'storage_unavailable', 'Storage unavailable')
 }
 
-function toHttpError (event: H3Event, err: unknown, opts: UploadOptions) {
+/** The h3 error for a failed multipart parse (413, 415, 400 …); internals only go to the log. */
+export function uploadHttpError (event: H3Event, err: unknown, opts: Pick<UploadOptions, 'maxBytes'>) {
   if (isError(err)) {
     // The caller's check refused the fields before the file was read: do not wait for the rest.
     event.node.res.setHeader('Connection', 'close')
@@ -316,48 +293,4 @@ function toHttpError (event: H3Event, err: unknown, opts: UploadOptions) {
   if (e?.message && /abort/i.test(e.message)) return apiError(400, 'upload_aborted', 'Upload cut off')
   console.error(`[uploads] failed: ${e?.message ?? String(err)}`)
   return apiError(500, 'upload_failed', 'Upload could not be stored')
-}
-
-/**
- * Parses a small multipart form (a drill file): text fields and the one file, both in memory,
- * capped at `maxBytes` (413). No temp file is written.
- */
-export async function receiveSmallFile (event: H3Event, opts: { fileField: string, maxBytes: number }): Promise<{ fields: Record<string, string>, file: { bytes: Uint8Array, name: string | null } | null }> {
-  const req = event.node.req as IncomingMessage
-  const type = String(req.headers['content-type'] ?? '').toLowerCase()
-  if (!type.startsWith('multipart/form-data')) throw apiError(415, 'not_multipart', 'Expected a multipart form', { expected: 'multipart/form-data' })
-  const length = Number.parseInt(String(req.headers['content-length'] ?? ''), 10)
-  if (Number.isFinite(length) && length > opts.maxBytes + FORM_OVERHEAD_BYTES) {
-    event.node.res.setHeader('Connection', 'close')
-    throw apiError(413, 'too_large', 'File too large', { maxBytes: opts.maxBytes })
-  }
-  let file: { chunks: Buffer[], name: string | null } | null = null
-  const form = formidable({
-    maxFiles: 1,
-    maxFileSize: opts.maxBytes,
-    maxTotalFileSize: opts.maxBytes,
-    maxFields: 20,
-    maxFieldsSize: 64 * 1024,
-    allowEmptyFiles: true,
-    minFileSize: 0,
-    fileWriteStreamHandler: (f?: unknown) => {
-      const v = f as unknown as { fieldName?: string, originalFilename?: string | null }
-      if (v.fieldName !== opts.fileField) {
-        return refusingWritable(new UploadRefused(400, 'unexpected_file', 'Unexpected file field', { field: v.fieldName ?? null, expected: opts.fileField }))
-      }
-      const mine = { chunks: [] as Buffer[], name: cleanName(v.originalFilename) }
-      file = mine
-      return new Writable({ write (chunk: Buffer, _e, cb) { mine.chunks.push(chunk); cb() } })
-    },
-  })
-  form.on('fileBegin', (name, f) => { (f as unknown as { fieldName: string }).fieldName = name })
-  try {
-    const [raw] = await form.parse(req)
-    const fields: Record<string, string> = {}
-    for (const [k, v] of Object.entries(raw)) if (v && v.length) fields[k] = String(v[v.length - 1])
-    const got = file as { chunks: Buffer[], name: string | null } | null
-    return { fields, file: got ? { bytes: new Uint8Array(Buffer.concat(got.chunks)), name: got.name } : null }
-  } catch (err) {
-    throw toHttpError(event, err, { fileField: opts.fileField, maxBytes: opts.maxBytes, keyPrefix: '' })
-  }
 }

@@ -15,6 +15,20 @@ describe('GET /api/health', () => {
     expect(app.output()).toMatch(/embedded mail catcher on 127\.0\.0\.1:\d+/)
   })
 
+  it('serves the favicon and robots.txt from public/, without a session', async () => {
+    const app = apps[0]!
+    const robots = await app.fetch('/robots.txt')
+    expect(robots.status).toBe(200)
+    // Robots Exclusion Protocol (RFC 9309 §2.2): a group for every agent, the whole site disallowed.
+    expect(await robots.text()).toMatch(/^User-agent: \*\s*\nDisallow: \/\s*$/m)
+    const icon = await app.fetch('/favicon.svg')
+    expect(icon.status).toBe(200)
+    expect(icon.headers.get('content-type')).toMatch(/^image\/svg\+xml/)
+    expect(await icon.text()).toContain('<svg')
+    const html = await (await app.fetch('/login')).text()
+    expect(html).toMatch(/<link[^>]+rel="icon"[^>]+href="\/favicon\.svg"/)
+  })
+
   it('is 503 naming the object store when it is down', async () => {
     const closed = await freePort() // nothing listens there
     const app = await startApp({ seed: false, env: { NUXT_STORAGE_EMBEDDED: 'false', NUXT_STORAGE_ENDPOINT: `http://127.0.0.1:${closed}` } })

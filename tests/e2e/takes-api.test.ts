@@ -186,11 +186,26 @@ describe('a WAV take', () => {
     expect(seen.canRestore).toBe(true)
     const list = await (await app.fetch(`/api/takes?drillId=${drillId}`, { cookie: director })).json() as any
     expect(list.items.find((i: any) => i.id === takeId)?.withdrawn).toBe(true)
+    // The director's list of withdrawn takes offers the restore; the player's own does not.
+    const withdrawn = await (await app.fetch('/api/takes?withdrawn=only&pageSize=100', { cookie: director })).json() as any
+    expect(withdrawn.items.find((i: any) => i.id === takeId)).toMatchObject({ withdrawn: true, withdrawnAt: expect.any(String), canRestore: true })
+    expect(withdrawn.items.every((i: any) => i.withdrawn)).toBe(true)
+    const own = await (await app.fetch('/api/takes?withdrawn=only&player=me', { cookie: clara })).json() as any
+    expect(own.items.find((i: any) => i.id === takeId)?.canRestore).toBe(false)
 
     expect((await post(`/api/takes/${takeId}/restore`, clara)).status).toBe(403)
     expect((await post(`/api/takes/${takeId}/restore`, director)).status).toBe(200)
     expect((await post(`/api/takes/${takeId}/restore`, director)).status).toBe(409)
     expect((await app.fetch(`/api/takes/${takeId}`, { cookie: aisha })).status).toBe(200)
+    const after = await (await app.fetch('/api/takes?withdrawn=only&pageSize=100', { cookie: director })).json() as any
+    expect(after.items.some((i: any) => i.id === takeId)).toBe(false)
+  })
+
+  it('tells the reader whether they are the player, and names the player', async () => {
+    const mine = await (await app.fetch(`/api/takes/${takeId}`, { cookie: clara })).json() as any
+    expect(mine).toMatchObject({ viewerIsPlayer: true, player: { name: 'Clara Lindqvist' } })
+    const theirs = await (await app.fetch(`/api/takes/${takeId}`, { cookie: director })).json() as any
+    expect(theirs).toMatchObject({ viewerIsPlayer: false, player: { name: 'Clara Lindqvist' } })
   })
 
   it('lists the player\'s takes with figures, paginated', async () => {
@@ -292,6 +307,21 @@ describe('refused uploads', () => {
     expect([count(), storedObjects(app).length]).toEqual(before)
   })
 
+  it('text fields sent after the audio → 400 before anything is stored', async () => {
+    const before = [count(), storedObjects(app).length]
+    const { wav } = triadTake([0, 0, 0])
+    const form = new FormData()
+    form.append('audio', new Blob([new Uint8Array(wav)]), 'take.wav')
+    form.append('drillId', String(drillId))
+    form.append('part', 'Soprano')
+    const r = await app.fetch('/api/takes', { method: 'POST', body: form, cookie: clara })
+    expect(r.status).toBe(400)
+    const body = await r.json() as any
+    expect(body.data.code).toBe('invalid_input')
+    expect(body.data.order).toBe('text fields before the audio file')
+    expect([count(), storedObjects(app).length]).toEqual(before)
+  })
+
   it('a part the drill does not have, or bad fields → 400; no session → 401', async () => {
     const { wav } = triadTake([0, 0, 0])
     const wrong = await postTake(app, clara, { drillId, part: 'Tuba', audio: wav })
@@ -389,6 +419,45 @@ describe('audio that cannot be scored', () => {
     const t = await waitForTake(app, clara, r.body.id)
     expect(t.error.code).toBe('silent')
     expect(dbQuery(app, 'select count(*) as n from jobs where take_id = ?', r.body.id)[0].n).toBe(2)
+  })
+})
+
+describe('assignments a take answers', () => {
+  it('links a take sent without an assignment to the player\'s one open assignment of that drill and part', async () => {
+    // A demo drill where Clara has exactly one open assignment for the part the server preselects.
+    let found: { drill: number, part: string, assignment: number } | null = null
+    for (const e of await (await app.fetch('/api/ensembles', { cookie: clara })).json() as { id: number }[]) {
+      for (const d of await (await app.fetch(`/api/ensembles/${e.id}/drills`, { cookie: clara })).json() as { id: number }[]) {
+        const v = await (await app.fetch(`/api/drills/${d.id}`, { cookie: clara })).json() as any
+        const open = v.openAssignments.filter((a: any) => a.part === v.preselectedPart)
+        if (v.preselectedPart && open.length === 1) found = { drill: d.id, part: v.preselectedPart, assignment: open[0].id }
+        if (found) break
+      }
+      if (found) break
+    }
+    if (!found) throw new Error('the demo gives Clara no drill with one open assignment')
+    const { wav } = triadTake([0, 0, 0])
+    const r = await postTake(app, clara, { drillId: found.drill, part: found.part, audio: wav })
+    expect(r.status).toBe(202)
+    const t = await (await app.fetch(`/api/takes/${r.body.id}`, { cookie: clara })).json() as any
+    expect(t.assignmentId).toBe(found.assignment)
+    const home = await (await app.fetch('/api/home', { cookie: clara })).json() as any
+    expect(home.due.find((d: any) => d.assignmentId === found!.assignment)?.submitted).toBe(true)
+  })
+
+  it('sends each assignment on Home with its drill\'s tolerance', async () => {
+    const tolerances: number[] = []
+    for (const who of [clara, marcus]) {
+      const home = await (await app.fetch('/api/home', { cookie: who })).json() as any
+      for (const d of home.due) {
+        const drill = await (await app.fetch(`/api/drills/${d.drillId}`, { cookie: who })).json() as any
+        expect(d.tolerance).toBe(drill.document.tolerance)
+        tolerances.push(d.tolerance)
+      }
+      for (const t of home.recent) expect(t.tolerance).toEqual(expect.any(Number))
+    }
+    // Meaningful only if some drill grades at something other than ±10 ¢.
+    expect(tolerances.some(t => t !== 10)).toBe(true)
   })
 })
 

@@ -3,7 +3,7 @@ import { readFileSync } from 'node:fs'
 import { join } from 'node:path'
 import { describe, expect, it } from 'vitest'
 import { normaliseRange } from '../../../server/utils/storage'
-import { sniffAudio, AUDIO_MIME } from '../../../server/utils/uploads'
+import { sniffAudio, AUDIO_MIME } from '../../../server/utils/audio-sniff'
 
 const FIXTURES = join(import.meta.dirname, '../../fixtures/audio')
 
