@@ -24,7 +24,7 @@ let app: App // serves the pages; no analysis workers
 let analyser: App | undefined // the same data, one analysis worker, started when needed
 let browser: Browser
 let player: { email: string, cookie: string }
-let drill: { id: number, title: string, document: any }
+let drill: { id: number, title: string, document: any, open: { id: number }[] }
 
 interface TakeList { items: { id: number }[], total: number }
 
@@ -47,7 +47,8 @@ beforeAll(async () => {
       const detail = await (await app.fetch(`/api/drills/${withPart.id}`, { cookie })).json() as any
       if (detail.preselectedPart !== PART) continue
       player = { email: a.email, cookie }
-      drill = { id: withPart.id, title: withPart.title, document: detail.document }
+      // The player's open assignments of this drill and part: the take is to answer one of them.
+      drill = { id: withPart.id, title: withPart.title, document: detail.document, open: detail.openAssignments.filter((o: any) => o.part === PART) }
       break
     }
     if (player) break
@@ -93,6 +94,10 @@ async function openTakeForm(page: Page) {
   expect(url.searchParams.get('part')).toBe(PART)
   // The player's section is preselected.
   expect(await page.getByLabel('Part').inputValue()).toBe(PART)
+  // With two open assignments of this drill and part the player says which one the take answers.
+  const choice = page.getByTestId('take-assignment-choice')
+  if (drill.open.length > 1) await choice.getByRole('radio').first().check()
+  else expect(await choice.count()).toBe(0)
   // The radio is visually hidden inside its label, which takes the click as for any user.
   const upload = page.getByRole('radio', { name: 'Upload a file' })
   await page.locator('label', { has: upload }).click()
@@ -192,6 +197,8 @@ describe('a player sends a take through the browser', () => {
     const api = await (await app.fetch(`/api/takes/${takeId}`, { cookie: player.cookie })).json() as any
     expect(api.status).toBe('analysed')
     expect(await takeCount()).toBe(before + 1)
+    // Sent from the drill page, it still counts for the open assignment of that drill and part.
+    expect(api.assignmentId).toBe(drill.open[0]?.id ?? null)
 
     // The hold table: one row per hold, in the drill's order.
     const headers = (await table.locator('thead th').allTextContents()).map(t => t.trim())
