@@ -60,7 +60,7 @@ describe('a director on a phone', () => {
     await page.getByTestId('restore-message').waitFor()
     expect(await page.getByTestId('restore-message').textContent()).toContain('Restored')
     // Focus lands on the heading, not on a button that has gone.
-    expect(await page.evaluate(() => document.activeElement?.tagName)).toBe('H1')
+    await page.waitForFunction(() => document.activeElement?.tagName === 'H1')
     const after = await (await app.fetch(`/api/takes/${take.id}`, { cookie: director })).json() as any
     expect(after.withdrawnAt).toBeNull()
     await page.context().close()
