@@ -1,0 +1,194 @@
+// Hold rows for the ensemble statistics and the holds CSV: from the stored per-hold results of
+// each take's current analysis, or re-scored from the stored measurements when another tuning
+// system, reference pitch or tolerance is asked for (never analysed again).
+import type { Knex } from 'knex'
+import type { StatHoldRow, StatTakeRow } from '../../shared/types/stats'
+import { rangeEnd, rangeStart } from '../../shared/schemas/stats'
+import type { SystemOptions } from '../../shared/drill/schema'
+import { computeTargets } from '../../shared/tuning/index'
+import type { TargetsResult } from '../../shared/tuning/index'
+import { scoreMeasurement } from '../analysis/score'
+import type { Measurement } from '../analysis/types'
+import { loadDrill } from './drills'
+
+/** What the rows are limited to (already authorised by the route). */
+export interface HoldFilters {
+  ensembleId: number
+  sectionId?: number
+  userId?: number
+  drillId?: number
+  assignmentId?: number
+  from?: string
+  to?: string
+}
+
+/** How the holds are scored: as stored, or against another system / A4 / tolerance. */
+export interface Scoring {
+  system?: SystemOptions
+  a4?: number
+  tolerance?: number
+}
+
+/** A hold as the CSV shows it: the stats row plus the note, frequencies and cents from equal. */
+export interface CsvHoldRow extends StatHoldRow {
+  drill: string
+  holdIndex: number
+  note: string | null
+  targetHz: number | null
+  detectedHz: number | null
+  centsFromEqual: number | null
+}
+
+// A hold whose pitch is this far from its equal-tempered note was a wrong note in any tuning
+// system we score; older analyses stored some of them with a deviation, so they are left out here.
+const WRONG_NOTE_CENTS = 100
+
+function takeQuery (db: Knex, f: HoldFilters) {
+  const q = db('takes as t')
+    .join('analyses as a', function () { this.on('a.take_id', 't.id').andOn('a.is_current', db.raw('1')) })
+    .join('users as u', 'u.id', 't.user_id')
+    .join('drills as d', 'd.id', 't.drill_id')
+    .leftJoin('memberships as m', function () { this.on('m.user_id', 't.user_id').andOn('m.ensemble_id', 't.ensemble_id') })
+    .leftJoin('sections as s', 's.id', 'm.section_id')
+    .where('t.ensemble_id', f.ensembleId)
+    .andWhere('t.status', 'analysed')
+    .whereNull('t.withdrawn_at')
+  if (f.sectionId) q.andWhere('m.section_id', f.sectionId)
+  if (f.userId) q.andWhere('t.user_id', f.userId)
+  if (f.drillId) q.andWhere('t.drill_id', f.drillId)
+  if (f.assignmentId) q.andWhere('t.assignment_id', f.assignmentId)
+  if (f.from) q.andWhere('t.created_at', '>=', rangeStart(f.from))
+  if (f.to) q.andWhere('t.created_at', '<', rangeEnd(f.to))
+  return q
+}
+
+const TAKE_COLUMNS = ['t.id as takeId', 't.created_at as submittedAt', 't.user_id as userId', 'u.name as player', 's.name as section', 't.drill_id as drillId', 't.part as part', 'd.title as drill']
+
+/** The takes the filters match (analysed, not withdrawn), oldest first. */
+export async function listStatTakes (db: Knex, f: HoldFilters): Promise<Array<StatTakeRow & { drill: string }>> {
+  return takeQuery(db, f).select(TAKE_COLUMNS).orderBy('t.created_at').orderBy('t.id')
+}
+
+/** True when the stored results cannot be used as they are. */
+export function needsRescore (s: Scoring): boolean {
+  return Boolean(s.system) || s.a4 !== undefined
+}
+
+/**
+ * Calls `onBatch` with each batch of takes and their scored holds (found, not wrong notes) in take order, keyset-paged
+ * so a large export never holds the whole result nor blocks other requests for long.
+ * Returns the number of takes that could not be re-scored (their drill changed since).
+ */
+export async function forEachHoldBatch (db: Knex, f: HoldFilters, scoring: Scoring, onBatch: (takes: StatTakeRow[], rows: CsvHoldRow[]) => void | Promise<void>, batchTakes = 400): Promise<{ notRescored: number }> {
+  let afterId = 0
+  let notRescored = 0
+  const targetsCache = new Map<number, { version: number, targets: TargetsResult } | null>()
+  for (;;) {
+    const base = takeQuery(db, f).andWhere('t.id', '>', afterId).orderBy('t.id').limit(batchTakes)
+    if (needsRescore(scoring)) {
+      const takes = await base.select([...TAKE_COLUMNS, 't.drill_version as drillVersion', 'a.measurement as measurement', 'a.tolerance as storedTolerance'])
+      if (!takes.length) break
+      afterId = takes[takes.length - 1].takeId
+      const rows: CsvHoldRow[] = []
+      const scored: StatTakeRow[] = []
+      for (const t of takes) {
+        const targets = await targetsFor(db, targetsCache, t.drillId, scoring)
+        if (!targets || targets.version !== t.drillVersion || !t.measurement) { notRescored++; continue }
+        const measurement = JSON.parse(t.measurement) as Measurement
+        let report
+        try { report = scoreMeasurement(measurement, targets.targets, t.part, scoring.tolerance ?? t.storedTolerance) } catch { notRescored++; continue }
+        scored.push({ takeId: t.takeId, submittedAt: t.submittedAt, userId: t.userId, player: t.player, section: t.section ?? null, drillId: t.drillId, part: t.part })
+        report.holds.forEach((h, i) => {
+          if (h.centsFromTarget == null || h.centsFromEqual == null || Math.abs(h.centsFromEqual) > WRONG_NOTE_CENTS) return
+          rows.push({
+            takeId: t.takeId, submittedAt: t.submittedAt, userId: t.userId, player: t.player, section: t.section ?? null,
+            drillId: t.drillId, drill: t.drill, part: t.part, chordIndex: h.index, holdIndex: i, member: h.member, note: h.note,
+            targetHz: h.targetHz, detectedHz: h.detectedHz, centsFromTarget: h.centsFromTarget, centsFromEqual: h.centsFromEqual,
+            withinTolerance: Boolean(h.withinTolerance),
+          })
+        })
+      }
+      await onBatch(scored, rows)
+      continue
+    }
+    // The stored results: one query per batch of takes, run on the raw connection (positional
+    // rows, no per-row mapping by the query builder) — the whole ensemble's year is ~300,000 rows.
+    const idRows = await rawRows(db, base.select('t.id'))
+    if (!idRows.length) break
+    const first = idRows[0]![0] as number
+    afterId = idRows[idRows.length - 1]![0] as number
+    const rows = await rawRows(db, takeQuery(db, f)
+      .andWhere('t.id', '>=', first).andWhere('t.id', '<=', afterId)
+      .leftJoin('hold_results as h', function () {
+        this.on('h.analysis_id', 'a.id').andOnNotNull('h.cents_from_target')
+          .andOn(db.raw('abs(coalesce(h.cents_from_equal, 0)) <= ?', [WRONG_NOTE_CENTS]))
+      })
+      .select(['t.id', 't.created_at', 't.user_id', 'u.name', 's.name', 't.drill_id', 't.part', 'd.title',
+        'h.hold_index', 'h.chord_index', 'h.member', 'h.note', 'h.target_hz', 'h.detected_hz',
+        'h.cents_from_target', 'h.cents_from_equal', 'h.within_tolerance'])
+      .orderBy('t.id').orderBy('h.hold_index'))
+    const tol = scoring.tolerance
+    const takes: StatTakeRow[] = []
+    const holds: CsvHoldRow[] = []
+    let lastTake = 0
+    for (const r of rows) {
+      const takeId = r[0] as number
+      if (takeId !== lastTake) {
+        lastTake = takeId
+        takes.push({ takeId, submittedAt: r[1] as string, userId: r[2] as number, player: r[3] as string, section: (r[4] as string | null) ?? null, drillId: r[5] as number, part: r[6] as string })
+      }
+      if (r[14] == null) continue
+      const cents = r[14] as number
+      holds.push({
+        takeId, submittedAt: r[1] as string, userId: r[2] as number, player: r[3] as string, section: (r[4] as string | null) ?? null,
+        drillId: r[5] as number, part: r[6] as string, drill: r[7] as string, holdIndex: r[8] as number, chordIndex: r[9] as number,
+        member: (r[10] as string | null) ?? null, note: (r[11] as string | null) ?? null, targetHz: r[12] as number | null,
+        detectedHz: r[13] as number | null, centsFromTarget: cents, centsFromEqual: r[15] as number | null,
+        withinTolerance: tol === undefined ? Boolean(r[16]) : Math.abs(cents) <= tol,
+      })
+    }
+    await onBatch(takes, holds)
+  }
+  return { notRescored }
+}
+
+/** Runs a built query on the raw better-sqlite3 connection and returns positional rows. */
+async function rawRows (db: Knex, qb: Knex.QueryBuilder): Promise<unknown[][]> {
+  const { sql, bindings } = qb.toSQL().toNative()
+  const client = db.client as { acquireConnection: () => Promise<RawConnection>, releaseConnection: (c: RawConnection) => Promise<void> }
+  const conn = await client.acquireConnection()
+  try {
+    return conn.prepare(sql).raw(true).all(...bindings) as unknown[][]
+  } finally {
+    await client.releaseConnection(conn)
+  }
+}
+interface RawConnection { prepare: (sql: string) => { raw: (on: boolean) => { all: (...b: unknown[]) => unknown } } }
+
+async function targetsFor (db: Knex, cache: Map<number, { version: number, targets: TargetsResult } | null>, drillId: number, s: Scoring) {
+  if (cache.has(drillId)) return cache.get(drillId)!
+  const drill = await loadDrill(db, drillId)
+  let entry: { version: number, targets: TargetsResult } | null = null
+  if (drill) {
+    try {
+      entry = { version: drill.version, targets: computeTargets(drill.document, s.system ?? drill.document.system, s.a4 ?? drill.document.a4) }
+    } catch { entry = null }
+  }
+  cache.set(drillId, entry)
+  return entry
+}
+
+/**
+ * A cheap fingerprint of everything the statistics of an ensemble depend on (takes, their current
+ * analyses, memberships and names): a cached result is used only while it is unchanged.
+ */
+export async function statsFingerprint (db: Knex, ensembleId: number): Promise<string> {
+  const t = await db('takes').where({ ensemble_id: ensembleId })
+    .first(db.raw('count(*) as n'), db.raw('max(updated_at) as u'), db.raw('max(id) as i'))
+  const a = await db('analyses as a').join('takes as t', 't.id', 'a.take_id').where('t.ensemble_id', ensembleId)
+    .first(db.raw('max(a.id) as i'))
+  const m = await db('memberships as m').join('users as u', 'u.id', 'm.user_id').where('m.ensemble_id', ensembleId)
+    .first(db.raw('count(*) as n'), db.raw('max(m.updated_at) as u'), db.raw('max(u.updated_at) as uu'))
+  const d = await db('drills').where({ ensemble_id: ensembleId }).first(db.raw('max(updated_at) as u'), db.raw('max(version) as v'))
+  return JSON.stringify([t, a, m, d])
+}
