@@ -1,6 +1,5 @@
 // The holds CSV: one row per scored hold, written batch by batch with the socket's back-pressure
 // respected, so 100,000 rows never sit in memory at once.
-import { once } from 'node:events'
 import type { ServerResponse } from 'node:http'
 import type { Knex } from 'knex'
 import { csvField, csvLine } from '../../shared/csv'
@@ -20,6 +19,14 @@ export function holdCsvRecord(h: CsvHoldRow): string {
   ])
 }
 
+function drainOrClose(res: ServerResponse): Promise<void> {
+  return new Promise((done) => {
+    const finish = () => { res.off('drain', finish); res.off('close', finish); done() }
+    res.on('drain', finish)
+    res.on('close', finish)
+  })
+}
+
 /** Streams the CSV to the response and ends it. */
 export async function writeHoldsCsv(db: Knex, res: ServerResponse, f: HoldFilters, s: Scoring): Promise<void> {
   res.statusCode = 200
@@ -27,7 +34,7 @@ export async function writeHoldsCsv(db: Knex, res: ServerResponse, f: HoldFilter
   res.once('close', () => { closed = true })
   const write = async (text: string) => {
     if (closed) throw new Error('client went away')
-    if (!res.write(text)) await Promise.race([once(res, 'drain'), once(res, 'close')])
+    if (!res.write(text)) await drainOrClose(res)
   }
   try {
     await write(csvLine(HOLDS_CSV_HEADER))

@@ -56,13 +56,13 @@ const CACHE_MS = 10 * 60_000
 const cache = new Map<string, CacheEntry>()
 
 /**
- * The statistics for the filters and scoring. Results are kept while the ensemble's takes,
- * analyses, members and drills are unchanged (checked on every call) and for ten minutes at
- * most; a second caller asking the same while it is computed shares the work.
+ * The statistics for the filters and scoring. A result is kept while nothing in the database has
+ * changed (checked on every call) and for ten minutes at most; a second caller asking the same
+ * while it is computed shares the work.
  */
 export async function ensembleStats (db: Knex, f: HoldFilters, s: Scoring): Promise<EnsembleStats & { notRescored: number }> {
   const key = JSON.stringify([f, s.system ?? null, s.a4 ?? null, s.tolerance ?? null])
-  const fingerprint = await statsFingerprint(db, f.ensembleId)
+  const fingerprint = await statsFingerprint(db)
   const hit = cache.get(key)
   if (hit && hit.fingerprint === fingerprint && Date.now() - hit.at < CACHE_MS) return hit.value
   const value = computeStats(db, f, s)

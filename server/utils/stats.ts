@@ -178,17 +178,20 @@ async function targetsFor (db: Knex, cache: Map<number, { version: number, targe
   return entry
 }
 
+const generations = new WeakMap<Knex, { n: number }>()
+
 /**
- * A cheap fingerprint of everything the statistics of an ensemble depend on (takes, their current
- * analyses, memberships and names): a cached result is used only while it is unchanged.
+ * A fingerprint of the database's contents for cached figures, cheap enough to check on every
+ * request: a count of this process's writes (every statement through the Knex handle that is not
+ * a read) and SQLite's `data_version`, which moves when another connection or process commits.
  */
-export async function statsFingerprint (db: Knex, ensembleId: number): Promise<string> {
-  const t = await db('takes').where({ ensemble_id: ensembleId })
-    .first(db.raw('count(*) as n'), db.raw('max(updated_at) as u'), db.raw('max(id) as i'))
-  const a = await db('analyses as a').join('takes as t', 't.id', 'a.take_id').where('t.ensemble_id', ensembleId)
-    .first(db.raw('max(a.id) as i'))
-  const m = await db('memberships as m').join('users as u', 'u.id', 'm.user_id').where('m.ensemble_id', ensembleId)
-    .first(db.raw('count(*) as n'), db.raw('max(m.updated_at) as u'), db.raw('max(u.updated_at) as uu'))
-  const d = await db('drills').where({ ensemble_id: ensembleId }).first(db.raw('max(updated_at) as u'), db.raw('max(version) as v'))
-  return JSON.stringify([t, a, m, d])
+export async function statsFingerprint (db: Knex): Promise<string> {
+  let gen = generations.get(db)
+  if (!gen) {
+    const g = { n: 0 }
+    db.on('query', (q: { sql?: string }) => { if (!/^\s*(select|pragma)\b/i.test(q.sql ?? '')) g.n++ })
+    generations.set(db, gen = g)
+  }
+  const rows = await db.raw('pragma data_version') as Array<{ data_version: number }>
+  return `${gen.n}:${rows[0]?.data_version ?? 0}`
 }

@@ -221,6 +221,15 @@ describe('GET /api/ensembles/:id/stats', () => {
     expect(mine.players.map((p: { userId: number }) => p.userId)).toEqual(mine.takes ? [playerId] : [])
     expect((await stats(`?userId=${leaderId}`, pc)).status).toBe(403)
     expect((await stats('?drillId=999999')).status).toBe(404)
+
+    // A take the player withdraws leaves the figures at once (nothing stale is served).
+    const before = await (await stats('')).json()
+    const take = takes.find(t => t.player.id === playerId)!
+    expect((await app.fetch(`/api/takes/${take.id}/withdraw`, { method: 'POST', cookie: pc, headers: { 'content-type': 'application/json' }, body: '{}' })).status).toBe(200)
+    const after = await (await stats('')).json()
+    expect(after.takes).toBe(before.takes - 1)
+    expect((await app.fetch(`/api/takes/${take.id}/restore`, { method: 'POST', cookie: director, headers: { 'content-type': 'application/json' }, body: '{}' })).status).toBe(200)
+    expect((await (await stats('')).json()).takes).toBe(before.takes)
     expect((await app.fetch(`/api/ensembles/${ensembleId + 1000}/stats`, { cookie: director })).status).toBe(404)
   })
 })
