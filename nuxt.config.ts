@@ -35,8 +35,9 @@ export default defineNuxtConfig({
       endpoint: '',
       region: 'us-east-1',
       bucket: 'driftline',
-      accessKeyId: 'S3RVER',
-      secretAccessKey: 'S3RVER',
+      /** Empty: the embedded store uses the install's generated keys (kept in storage/), a provider its own credential chain. */
+      accessKeyId: '',
+      secretAccessKey: '',
     },
     mail: {
       /** Start the local mail catcher on loopback (off when host is set). */

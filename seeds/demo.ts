@@ -5,7 +5,7 @@
 import type { Knex } from 'knex'
 import { Hash } from '@adonisjs/hash'
 import { Scrypt } from '@adonisjs/hash/drivers/scrypt'
-import { createObjectStore, startEmbeddedS3 } from '../server/services/object-store'
+import { createObjectStore, embeddedCredentials, startEmbeddedS3 } from '../server/services/object-store'
 import { seedDemoIfEmpty } from './demo/index'
 
 const env = (name: string, fallback: string) => process.env[name] ?? fallback
@@ -15,15 +15,12 @@ export async function seed (knex: Knex): Promise<void> {
   const bucket = env('NUXT_STORAGE_BUCKET', 'driftline')
   let endpoint = env('NUXT_STORAGE_ENDPOINT', '')
   const embedded = !endpoint && env('NUXT_STORAGE_EMBEDDED', 'true') !== 'false'
-  const s3 = embedded ? await startEmbeddedS3({ dir: env('NUXT_STORAGE_DIR', './storage/objects'), bucket }) : null
+  let keys = { accessKeyId: env('NUXT_STORAGE_ACCESS_KEY_ID', ''), secretAccessKey: env('NUXT_STORAGE_SECRET_ACCESS_KEY', '') }
+  const dir = env('NUXT_STORAGE_DIR', './storage/objects')
+  if (embedded) keys = embeddedCredentials(dir, keys)
+  const s3 = embedded ? await startEmbeddedS3({ dir, bucket, credentials: keys }) : null
   if (s3) endpoint = s3.endpoint
-  const store = createObjectStore({
-    endpoint,
-    region: env('NUXT_STORAGE_REGION', 'us-east-1'),
-    bucket,
-    accessKeyId: env('NUXT_STORAGE_ACCESS_KEY_ID', 'S3RVER'),
-    secretAccessKey: env('NUXT_STORAGE_SECRET_ACCESS_KEY', 'S3RVER'),
-  })
+  const store = createObjectStore({ endpoint, region: env('NUXT_STORAGE_REGION', 'us-east-1'), bucket, ...keys })
   // Same scrypt settings as nuxt-auth-utils' hashPassword defaults, so the server verifies these hashes.
   const hasher = new Hash(new Scrypt({}))
   try {

@@ -1,9 +1,10 @@
 /// <reference path="./s3rver.d.ts" />
 // Object storage over the S3 API (a real provider in production, the embedded s3rver fake in
 // development and tests). Plain Node: the knex seed CLI uses it too, so no Nitro imports here.
-import { mkdirSync } from 'node:fs'
+import { chmodSync, mkdirSync } from 'node:fs'
 import { resolve } from 'node:path'
 import type { Readable } from 'node:stream'
+import { credentialsFileFor, installCredentials, verifySignedRequest, type S3Credentials } from './s3-auth'
 import {
   CreateBucketCommand, DeleteObjectCommand, GetObjectCommand, HeadBucketCommand, HeadObjectCommand,
   S3Client, S3ServiceException,
@@ -77,7 +78,10 @@ export function createObjectStore (settings: ObjectStoreSettings): ObjectStore {
   const base = {
     region: settings.region || 'us-east-1',
     endpoint: settings.endpoint || undefined,
-    credentials: { accessKeyId: settings.accessKeyId, secretAccessKey: settings.secretAccessKey },
+    // Without keys a real provider's own credential chain (environment, instance role) applies.
+    credentials: settings.accessKeyId && settings.secretAccessKey
+      ? { accessKeyId: settings.accessKeyId, secretAccessKey: settings.secretAccessKey }
+      : undefined,
     // Path-style addressing and checksums only when required: s3rver otherwise stores streamed
     // bodies with the chunk signatures in them or rejects unknown-length streams.
     forcePathStyle: true,
@@ -185,10 +189,26 @@ export interface EmbeddedS3 {
   close: () => Promise<void>
 }
 
-/** Starts the S3-compatible fake on 127.0.0.1 (a free port) with its data under `dir`. */
-export async function startEmbeddedS3 (opts: { dir: string, bucket: string }): Promise<EmbeddedS3> {
+/**
+ * The embedded store's credentials: the given pair when both are set (NUXT_STORAGE_ACCESS_KEY_ID
+ * and NUXT_STORAGE_SECRET_ACCESS_KEY), else the install's own, generated on first start and kept
+ * next to the store's folder.
+ */
+export function embeddedCredentials (dir: string, given: Partial<S3Credentials> = {}): S3Credentials {
+  if (given.accessKeyId && given.secretAccessKey) return { accessKeyId: given.accessKeyId, secretAccessKey: given.secretAccessKey }
+  return installCredentials(credentialsFileFor(dir))
+}
+
+const ACCESS_DENIED = '<?xml version="1.0" encoding="UTF-8"?>\n<Error><Code>AccessDenied</Code><Message>Access Denied</Message></Error>'
+
+/**
+ * Starts the S3-compatible fake on 127.0.0.1 (a free port) with its data under `dir`. Every
+ * request must carry a version-4 signature made with `credentials`; anything else gets 403.
+ */
+export async function startEmbeddedS3 (opts: { dir: string, bucket: string, credentials: S3Credentials }): Promise<EmbeddedS3> {
   const directory = resolve(opts.dir)
-  mkdirSync(directory, { recursive: true })
+  mkdirSync(directory, { recursive: true, mode: 0o700 })
+  try { chmodSync(directory, 0o700) } catch { /* a folder we do not own keeps its mode */ }
   const mod = await import('s3rver') as unknown as { default: new (o: object) => S3rverInstance }
   const S3rver = mod.default
   const server = new S3rver({
@@ -197,6 +217,19 @@ export async function startEmbeddedS3 (opts: { dir: string, bucket: string }): P
     directory,
     silent: true,
     configureBuckets: [{ name: opts.bucket }],
+  })
+  // Koa composes its middleware when it starts listening: this check runs before any of the fake's own.
+  server.middleware.unshift(async (ctx, next) => {
+    const check = verifySignedRequest({ method: ctx.method, url: ctx.url, headers: ctx.req.headers }, opts.credentials)
+    if (!check.ok) {
+      ctx.status = 403
+      ctx.type = 'application/xml'
+      ctx.body = ACCESS_DENIED
+      return
+    }
+    // Verified here; the fake's own (partial) signature handling is left out of it.
+    delete ctx.req.headers.authorization
+    await next()
   })
   const address = await server.run()
   const port = address.port
@@ -207,7 +240,17 @@ export async function startEmbeddedS3 (opts: { dir: string, bucket: string }): P
   }
 }
 
+interface KoaContext {
+  method: string
+  url: string
+  req: import('node:http').IncomingMessage
+  status: number
+  type: string
+  body: unknown
+}
+
 interface S3rverInstance {
+  middleware: ((ctx: KoaContext, next: () => Promise<void>) => Promise<void>)[]
   run: () => Promise<{ port: number, address: string }>
   close: () => Promise<void>
 }

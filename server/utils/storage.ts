@@ -1,6 +1,6 @@
 import { resolve } from 'node:path'
 import type { Readable } from 'node:stream'
-import { createObjectStore, startEmbeddedS3, type EmbeddedS3, type ObjectStore } from '../services/object-store'
+import { createObjectStore, embeddedCredentials, startEmbeddedS3, type EmbeddedS3, type ObjectStore } from '../services/object-store'
 
 export type { ObjectStore, ObjectBody, ObjectInfo } from '../services/object-store'
 export { RangeNotSatisfiableError } from '../services/object-store'
@@ -10,24 +10,21 @@ let embedded: (EmbeddedS3 & { dir: string }) | null = null
 
 /**
  * The object store of runtimeConfig.storage. With `embedded` on and no endpoint the S3-compatible
- * fake is started on 127.0.0.1 (a free port) with its data under storage.dir.
+ * fake is started on 127.0.0.1 (a free port) with its data under storage.dir; it answers only
+ * requests signed with the install's credentials (or the configured ones, when both are set).
  */
 export function useObjectStore (): Promise<ObjectStore> {
   store ??= (async () => {
     const c = useRuntimeConfig().storage
     let endpoint = String(c.endpoint || '')
+    let keys = { accessKeyId: String(c.accessKeyId || ''), secretAccessKey: String(c.secretAccessKey || '') }
     if (!endpoint && c.embedded) {
       const dir = resolve(String(c.dir))
-      embedded = { ...await startEmbeddedS3({ dir, bucket: c.bucket }), dir }
+      keys = embeddedCredentials(dir, keys)
+      embedded = { ...await startEmbeddedS3({ dir, bucket: c.bucket, credentials: keys }), dir }
       endpoint = embedded.endpoint
     }
-    const s = createObjectStore({
-      endpoint,
-      region: c.region,
-      bucket: c.bucket,
-      accessKeyId: c.accessKeyId,
-      secretAccessKey: c.secretAccessKey,
-    })
+    const s = createObjectStore({ endpoint, region: c.region, bucket: c.bucket, ...keys })
     // A provider that is down at start must not hold start-up; put() retries the bucket check.
     s.ensureBucket().catch(err => console.warn(`[storage] bucket "${c.bucket}" not checked: ${(err as Error).message}`))
     return s
