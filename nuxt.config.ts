@@ -64,9 +64,14 @@ export default defineNuxtConfig({
       /** Seconds a sign-in lasts (14 days). */
       maxAge: 60 * 60 * 24 * 14,
     },
-    /** Sign-in rate limit: failed attempts allowed per e-mail address and per client address within windowS seconds. */
+    /**
+     * Sign-in rate limit, failed attempts within windowS seconds: per account from one client
+     * address, per account from every address (far higher, so nobody can lock the owner out),
+     * and per client address.
+     */
     login: {
-      maxFailuresPerAccount: 5,
+      maxFailuresPerAccountAddress: 5,
+      maxFailuresPerAccount: 100,
       maxFailuresPerAddress: 30,
       windowS: 900,
     },

@@ -1,3 +1,4 @@
+import { randomUUID } from 'node:crypto'
 import type { H3Event } from 'h3'
 import type { Knex } from 'knex'
 import type { EnsembleRole, SessionUser } from '../../shared/types/user'
@@ -99,4 +100,32 @@ export function canReviewSection (membership: Membership | null | undefined, sec
   if (!membership) return false
   if (membership.role === 'director') return true
   return membership.role === 'section_leader' && sectionId != null && membership.sectionId === sectionId
+}
+
+/** Name of the session cookie (nuxt-auth-utils' default unless runtimeConfig.session.name is set). */
+function sessionCookieName (): string {
+  return String((useRuntimeConfig().session as { name?: string } | undefined)?.name || 'nuxt-session')
+}
+
+/** Refuses the session's id from now on (until it would have expired anyway). */
+export async function revokeCurrentSession (event: H3Event): Promise<void> {
+  const session = await getUserSession(event)
+  const userId = Number(session.user?.id)
+  if (!session.id || !Number.isInteger(userId)) return
+  const expiresAtMs = Number(session.loggedInAt ?? Date.now()) + sessionMaxAgeS() * 1000
+  await revokeSession(useDb(), session.id, userId, expiresAtMs).catch((err) => {
+    // A session of an account that no longer exists cannot be used anyway.
+    console.warn(`[auth] session not recorded as revoked: ${(err as Error).message}`)
+  })
+}
+
+/**
+ * Signs the user in under a new session id: an id the browser already carried (possibly planted
+ * by someone else) is never kept, and a previous signed-in session in that cookie is revoked.
+ */
+export async function startSession (event: H3Event, user: SessionUser): Promise<void> {
+  await revokeCurrentSession(event)
+  const sessions = (event.context.sessions ??= Object.create(null)) as Record<string, unknown>
+  sessions[sessionCookieName()] = { id: randomUUID(), createdAt: Date.now(), data: Object.create(null) }
+  await setUserSession(event, { user, loggedInAt: Date.now() })
 }

@@ -39,29 +39,71 @@ export class SlidingWindowLimiter {
   }
 }
 
-interface LoginLimits { maxFailuresPerAccount: number, maxFailuresPerAddress: number, windowS: number }
+export interface LoginLimits {
+  /** Failures of one account from one client address. */
+  maxFailuresPerAccountAddress: number
+  /** Failures of one account from every address together: far higher, so one attacker cannot lock the owner out. */
+  maxFailuresPerAccount: number
+  /** Failures from one client address, whatever the account. */
+  maxFailuresPerAddress: number
+  windowS: number
+}
 
-let loginLimiters: { account: SlidingWindowLimiter, address: SlidingWindowLimiter } | undefined
+/**
+ * Failed sign-ins counted three ways: the account at this address (the tight limit), the address
+ * across accounts, and the account across addresses (a ceiling far above the first). Someone
+ * guessing from one address is stopped after a few tries without locking the owner, who signs in
+ * from another address, out of their account.
+ */
+export class LoginThrottle {
+  readonly pair: SlidingWindowLimiter
+  readonly account: SlidingWindowLimiter
+  readonly address: SlidingWindowLimiter
+  constructor (limits: LoginLimits) {
+    const ms = limits.windowS * 1000
+    this.pair = new SlidingWindowLimiter(limits.maxFailuresPerAccountAddress, ms)
+    this.account = new SlidingWindowLimiter(limits.maxFailuresPerAccount, ms)
+    this.address = new SlidingWindowLimiter(limits.maxFailuresPerAddress, ms)
+  }
+
+  private static pairKey (email: string, ip: string) { return `${email}\n${ip}` }
+
+  /** Whether a sign-in to this account from this address may be tried now. */
+  check (email: string, ip: string, now = Date.now()): { limited: boolean, retryAfterS: number } {
+    const checks = [this.pair.check(LoginThrottle.pairKey(email, ip), now), this.account.check(email, now), this.address.check(ip, now)]
+    const limited = checks.filter(c => c.limited)
+    return limited.length ? { limited: true, retryAfterS: Math.max(...limited.map(c => c.retryAfterS)) } : { limited: false, retryAfterS: 0 }
+  }
+
+  failed (email: string, ip: string, now = Date.now()): void {
+    this.pair.hit(LoginThrottle.pairKey(email, ip), now)
+    this.account.hit(email, now)
+    this.address.hit(ip, now)
+  }
+
+  /** A right password clears this account's count at this address; the wider counts keep theirs. */
+  succeeded (email: string, ip: string): void {
+    this.pair.reset(LoginThrottle.pairKey(email, ip))
+  }
+}
+
+let loginThrottle: LoginThrottle | undefined
 let resetLimiters: { account: SlidingWindowLimiter, address: SlidingWindowLimiter } | undefined
 
 function limits (): LoginLimits {
   const c = useRuntimeConfig().login as Partial<LoginLimits> | undefined
+  const n = (v: unknown, fallback: number) => (Number(v) > 0 ? Number(v) : fallback)
   return {
-    maxFailuresPerAccount: Number(c?.maxFailuresPerAccount ?? 5),
-    maxFailuresPerAddress: Number(c?.maxFailuresPerAddress ?? 30),
-    windowS: Number(c?.windowS ?? 900),
+    maxFailuresPerAccountAddress: n(c?.maxFailuresPerAccountAddress, 5),
+    maxFailuresPerAccount: n(c?.maxFailuresPerAccount, 100),
+    maxFailuresPerAddress: n(c?.maxFailuresPerAddress, 30),
+    windowS: n(c?.windowS, 900),
   }
 }
 
-function useLoginLimiters () {
-  if (!loginLimiters) {
-    const l = limits()
-    loginLimiters = {
-      account: new SlidingWindowLimiter(l.maxFailuresPerAccount, l.windowS * 1000),
-      address: new SlidingWindowLimiter(l.maxFailuresPerAddress, l.windowS * 1000),
-    }
-  }
-  return loginLimiters
+function useLoginThrottle (): LoginThrottle {
+  loginThrottle ??= new LoginThrottle(limits())
+  return loginThrottle
 }
 
 /** The client's address (the socket's; forwarded headers are not trusted). */
@@ -69,28 +111,23 @@ export function clientAddress (event: H3Event): string {
   return getRequestIP(event) ?? 'unknown'
 }
 
-/** Throws 429 with Retry-After when this address or this account has failed too often. */
+/** Throws 429 with Retry-After when this account at this address, the address or the account has failed too often. */
 export function assertLoginAllowed (event: H3Event, email: string): void {
-  const { account, address } = useLoginLimiters()
-  const a = account.check(email)
-  const b = address.check(clientAddress(event))
-  if (a.limited || b.limited) {
-    const retryAfterS = Math.max(a.retryAfterS, b.retryAfterS)
-    setResponseHeader(event, 'Retry-After', retryAfterS)
-    throw apiError(429, 'rate_limited', 'Too many sign-in attempts', { retryAfterS })
+  const c = useLoginThrottle().check(email, clientAddress(event))
+  if (c.limited) {
+    setResponseHeader(event, 'Retry-After', c.retryAfterS)
+    throw apiError(429, 'rate_limited', 'Too many sign-in attempts', { retryAfterS: c.retryAfterS })
   }
 }
 
-/** Records a failed sign-in against the address and the account. */
+/** Records a failed sign-in. */
 export function recordLoginFailure (event: H3Event, email: string): void {
-  const { account, address } = useLoginLimiters()
-  account.hit(email)
-  address.hit(clientAddress(event))
+  useLoginThrottle().failed(email, clientAddress(event))
 }
 
-/** A successful sign-in clears the account's failures (the address keeps its count). */
-export function recordLoginSuccess (email: string): void {
-  useLoginLimiters().account.reset(email)
+/** A successful sign-in clears this account's failures at this address. */
+export function recordLoginSuccess (event: H3Event, email: string): void {
+  useLoginThrottle().succeeded(email, clientAddress(event))
 }
 
 /** Password-reset requests allowed now for this address and e-mail (3 per hour per account, 20 per address). */

@@ -15,9 +15,9 @@ export default defineEventHandler(async (event) => {
     await writeAudit(db, { actorId: account?.id ?? null, action: 'auth.login_failed', ip, data: { email: body.email } })
     throw apiError(401, 'wrong_credentials', 'Wrong e-mail or password')
   }
-  recordLoginSuccess(body.email)
+  recordLoginSuccess(event, body.email)
   const user = toSessionUser({ id: account.id, email: account.email, name: account.name, site_role: account.siteRole })
-  await replaceUserSession(event, { user, loggedInAt: Date.now() })
+  await startSession(event, user)
   await markSignedIn(db, user.id, ip)
   return { user }
 })
