@@ -25,8 +25,11 @@ export default defineNuxtConfig({
   runtimeConfig: {
     /** SQLite database file. */
     dbFile: './storage/driftline.sqlite',
-    /** Seed the demo scenario when the database is empty. */
-    seedDemo: true,
+    /**
+     * Seed the demo scenario when the database is empty. 'auto': yes, unless a real object store
+     * (storage.endpoint) or SMTP server (mail.host) is configured; true/false decide outright.
+     */
+    seedDemo: 'auto',
     storage: {
       /** Start the local S3-compatible object store on loopback (off when endpoint is set). */
       embedded: true,
@@ -40,8 +43,8 @@ export default defineNuxtConfig({
       secretAccessKey: '',
     },
     mail: {
-      /** Start the local mail catcher on loopback (off when host is set). */
-      embedded: true,
+      /** Start the local mail catcher on loopback: never when host is set; 'auto' = unless a real object store is set. */
+      embedded: 'auto',
       /** Folder where the catcher keeps every message. */
       dir: './storage/mail',
       host: '',
@@ -80,8 +83,8 @@ export default defineNuxtConfig({
     /** Public address used in mailed links. */
     baseUrl: 'http://localhost:3000',
     public: {
-      /** Show the development mailbox (on whenever the embedded mail catcher runs). */
-      devMailbox: true,
+      /** Show the development mailbox while the mail catcher runs ('auto' = yes; false hides it). */
+      devMailbox: 'auto',
     },
   },
   nitro: {

@@ -27,9 +27,13 @@ async function startup (): Promise<StartupInfo> {
   if (s3) console.info(`[storage] embedded object store on ${s3.endpoint} (data in ${s3.dir})`)
   else if (store) console.info(`[storage] object store ${config.storage.endpoint || '(provider default)'} bucket "${config.storage.bucket}"`)
   if (mail) console.info(`[mail] embedded mail catcher on ${mail.host}:${mail.port} (messages in ${mail.dir})`)
+  else if (!config.mail.host) console.warn('[mail] no SMTP server (NUXT_MAIL_HOST) and no mail catcher: mail is not sent')
 
   let seeded = false
-  if (config.seedDemo) {
+  if (!seedDemoEnabled() && explicitSwitch(config.seedDemo) === null) {
+    console.info('[seed] demo scenario off: a real object store or SMTP server is configured (NUXT_SEED_DEMO=true seeds it anyway)')
+  }
+  if (seedDemoEnabled()) {
     try {
       const result = await seedDemoIfEmpty(db, {
         hashPassword,

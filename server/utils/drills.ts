@@ -7,13 +7,14 @@ import type { DrillListItem } from '../../shared/types/drill-view'
 import { midiToDrill } from '../../shared/drill/midi'
 import type { DrillAccess } from './access'
 import { partForSection } from './home'
+import { describeValue, jsonErrorPlace } from '../../shared/text'
 
 /** A note name in a drill that names no pitch ("H4", "Bb" without octave). */
 export class DrillNoteError extends Error {
   override name = 'DrillNoteError'
   code = 'invalid_note'
   constructor (readonly path: (string | number)[], readonly note: string) {
-    super(`"${note}" is not a note with an octave (such as "Bb3")`)
+    super(`${describeValue(note)} is not a note with an octave (such as "Bb3")`)
   }
 }
 
@@ -173,8 +174,12 @@ export function drillFromFile (bytes: Uint8Array, title?: string): { document: D
     const text = new TextDecoder('utf-8', { fatal: false }).decode(bytes).replace(/^\uFEFF/, '').trim()
     if (!text.startsWith('{')) return { refused: 'not_a_drill', message: 'Not a drill file', details: { expected: 'drill JSON or Standard MIDI File' } }
     let json: Record<string, unknown>
-    try { json = JSON.parse(text) } catch (e) {
-      return { refused: 'invalid_json', message: 'Drill file is not valid JSON', details: { message: (e as Error).message } }
+    try { json = JSON.parse(text) } catch {
+      const place = jsonErrorPlace(text)
+      return { refused: 'invalid_json', message: 'Drill file is not valid JSON', details: { message: `The drill file is not valid JSON${place ? ` (${place})` : ''}`, path: place } }
+    }
+    if (!json || typeof json !== 'object' || Array.isArray(json)) {
+      return { refused: 'invalid_drill', message: 'Invalid drill file', details: { message: 'The drill file must hold one drill object', path: null, issues: [] } }
     }
     if (title) json = { ...json, title }
     return { document: parseDrill(json) }
@@ -183,6 +188,8 @@ export function drillFromFile (bytes: Uint8Array, title?: string): { document: D
     if (e?.name === 'TuningError') {
       return { refused: e.code ?? 'invalid_drill', message: 'Invalid drill file', details: { message: e.message, path: e.path ?? null, issues: e.issues ?? [] } }
     }
-    throw err
+    // Anything else is a reader failing on a damaged file: its wording stays in the log.
+    console.warn(`[drills] import failed: ${(err as Error)?.message ?? String(err)}`)
+    return { refused: 'unreadable_drill', message: 'Invalid drill file', details: { message: 'The drill file cannot be read', path: null, issues: [] } }
   }
 }

@@ -14,11 +14,11 @@ export interface OutgoingMail {
   html?: string
 }
 
-/** Starts the mail catcher on 127.0.0.1 when mail.embedded is on and no SMTP host is set. */
+/** Starts the mail catcher on 127.0.0.1 when it is on (server/utils/service-mode.ts). */
 export function startMail (): Promise<MailCatcher | null> {
   catcher ??= (async () => {
     const c = useRuntimeConfig().mail
-    if (c.host || !c.embedded) return null
+    if (!mailCatcherEnabled()) return null
     return startMailCatcher({ dir: resolve(String(c.dir)) })
   })().catch((err) => {
     catcher = null
@@ -27,8 +27,9 @@ export function startMail (): Promise<MailCatcher | null> {
   return catcher
 }
 
-/** The folder of caught messages while the embedded catcher runs, else null. */
+/** The folder of caught messages while the embedded catcher runs and the mailbox is on, else null. */
 export async function caughtMailDir (): Promise<string | null> {
+  if (!devMailboxEnabled()) return null
   const m = await catcher?.catch(() => null)
   return m?.dir ?? null
 }

@@ -50,28 +50,6 @@ export async function stopObjectStore (): Promise<void> {
   await e?.close()
 }
 
-/**
- * An HTTP Range header (one range of bytes) as an explicit "bytes=a-b" within an object of
- * `size` bytes (RFC 9110 §14.1.2): suffix ranges are turned into absolute ones, since not every
- * store reads them. null = send the whole object; 'unsatisfiable' = answer 416.
- */
-export function normaliseRange (header: string | undefined, size: number | null): string | 'unsatisfiable' | null {
-  if (!header) return null
-  const m = /^\s*bytes\s*=\s*(\d*)\s*-\s*(\d*)\s*$/i.exec(header)
-  if (!m || (m[1] === '' && m[2] === '')) return null // several ranges or junk: the whole object
-  if (size == null) return m[1] === '' ? null : `bytes=${m[1]}-${m[2]}`
-  if (m[1] === '') {
-    const n = Number(m[2])
-    if (n === 0) return 'unsatisfiable'
-    return `bytes=${Math.max(0, size - n)}-${size - 1}`
-  }
-  const start = Number(m[1])
-  if (start >= size) return 'unsatisfiable'
-  const end = m[2] === '' ? size - 1 : Math.min(Number(m[2]), size - 1)
-  if (end < start) return null
-  return `bytes=${start}-${end}`
-}
-
 /** Reads a whole object stream into one buffer. */
 export async function readAll (body: Readable): Promise<Uint8Array> {
   const chunks: Uint8Array[] = []

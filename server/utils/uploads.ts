@@ -10,6 +10,7 @@ import { isError, type H3Event } from 'h3'
 import formidable, { errors as formidableErrors } from 'formidable'
 import { headerDurationS, type AudioFormat } from '../analysis/decode'
 import { apiError } from './errors'
+import { cleanFileName } from '../../shared/text'
 import { AUDIO_MIME, SNIFF_BYTES, sniffAudio } from './audio-sniff'
 
 /** Room for the multipart framing and text fields around the file. */
@@ -138,13 +139,12 @@ export async function receiveUpload (event: H3Event, store: UploadStore, opts: U
   }
 }
 
-/** A client's file name for display only: no path, no control characters, at most 255 characters. */
+/**
+ * A client's file name for display only: no path, no control or bidirectional control
+ * characters (which could show it as another name), at most 255 characters.
+ */
 export function cleanName (name: string | null | undefined): string | null {
-  if (!name) return null
-  // Display only: strip path parts and control characters, cap the length.
-  const base = String(name).split(/[\\/]/).pop() ?? ''
-  const clean = base.replace(/[\u0000-\u001f\u007f]/g, '').trim().slice(0, 255)
-  return clean || null
+  return cleanFileName(name)
 }
 
 /** A writable that refuses every byte with `err` (an unexpected file part). */

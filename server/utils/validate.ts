@@ -1,7 +1,9 @@
 import type { H3Event } from 'h3'
-import { getQuery, getRouterParams, readRawBody } from 'h3'
+import { getQuery, getRequestHeader, getRouterParams, readRawBody } from 'h3'
 import { z } from 'zod'
 import { apiError } from './errors'
+import { Id } from '../../shared/schemas/id'
+import { plainIssueMessage } from '../../shared/text'
 
 /** Zod issues in the plain shape every 400 carries in `data.issues`. */
 export function formatIssues (error: z.ZodError) {
@@ -9,13 +11,28 @@ export function formatIssues (error: z.ZodError) {
 }
 
 function parseOr400<T extends z.ZodType> (schema: T, value: unknown): z.output<T> {
-  const result = schema.safeParse(value)
+  const result = schema.safeParse(value, { error: plainIssueMessage })
   if (!result.success) throw apiError(400, 'invalid_input', 'Invalid input', { issues: formatIssues(result.error) })
   return result.data
 }
 
-/** Reads a JSON body and validates it: 400 `invalid_json` when unreadable, 400 `invalid_input` with issues. */
+/** `application/json`, with or without parameters such as a charset. */
+export function isJsonContentType (type: string | null | undefined): boolean {
+  return /^application\/json\s*(;|$)/i.test(String(type ?? '').trim())
+}
+
+/** 415 for a body that is not JSON where JSON is expected. */
+export function unsupportedMediaType () {
+  return apiError(415, 'unsupported_media_type', 'Send the body as application/json', { expected: 'application/json' })
+}
+
+/**
+ * Reads a JSON body and validates it: 415 `unsupported_media_type` for a body of another type,
+ * 400 `invalid_json` when unreadable, 400 `invalid_input` with issues.
+ */
 export async function readJsonBody<T extends z.ZodType> (event: H3Event, schema: T): Promise<z.output<T>> {
+  const type = getRequestHeader(event, 'content-type')
+  if (type && !isJsonContentType(type)) throw unsupportedMediaType()
   const raw = await readRawBody(event, 'utf8')
   let value: unknown
   try {
@@ -37,5 +54,5 @@ export function validateQuery<T extends z.ZodType> (event: H3Event, schema: T): 
   return parseOr400(schema, getQuery(event))
 }
 
-/** `:id` route param as a positive integer. */
-export const IdParams = z.object({ id: z.coerce.number().int().positive().max(Number.MAX_SAFE_INTEGER) })
+/** `:id` route param as a positive integer in plain decimal (anything else is 400). */
+export const IdParams = z.object({ id: Id })

@@ -1,6 +1,7 @@
 import pkg from '@tonejs/midi'
 import { Key } from '@tonaljs/tonal'
 import { TuningError } from '../tuning/errors'
+import { plainIssueMessage } from '../text'
 import { mod, parseKey } from '../tuning/pitch'
 import type { DrillDocument, DrillInput, SystemOptions } from './schema'
 import { DrillDocument as DrillSchema } from './schema'
@@ -69,8 +70,9 @@ export function midiToDrill(bytes: Uint8Array, opts: MidiImportOptions = {}): Dr
   let midi: InstanceType<typeof Midi>
   try {
     midi = new Midi(bytes)
-  } catch (e) {
-    throw new TuningError('midi_unreadable', `The MIDI file cannot be read: ${(e as Error).message}`)
+  } catch {
+    // The reader's own wording (a JavaScript error) means nothing to people.
+    throw new TuningError('midi_unreadable', 'The MIDI file cannot be read: it is damaged or cut short')
   }
   const ppq = midi.header.ppq
   if (!(ppq > 0)) throw new TuningError('midi_unreadable', 'The MIDI file uses SMPTE time, which a drill cannot follow; export it with ticks per quarter note')
@@ -169,7 +171,7 @@ export function midiToDrill(bytes: Uint8Array, opts: MidiImportOptions = {}): Dr
     parts: parts.map(p => ({ name: p.name, ...(opts.instruments?.[p.name] ? { instrument: opts.instruments[p.name] } : {}) })),
     chords,
   }
-  const result = DrillSchema.safeParse(input)
+  const result = DrillSchema.safeParse(input, { error: plainIssueMessage })
   if (!result.success) {
     const issue = result.error.issues[0]!
     const path = issue.path.map(String).join('.')

@@ -4,6 +4,8 @@ import type { TuningIssue } from '../tuning/errors'
 import { parseKey, parseNote, parsePitchClass } from '../tuning/pitch'
 import { parseScala } from '../tuning/scala'
 import { INSTRUMENTS } from '../tuning/transpose'
+import { jsonErrorPlace, plainIssueMessage } from '../text'
+import { userText } from '../schemas/text'
 
 /** Tuning systems a drill can be scored against (names are ours; the maths is the trade's). */
 export const SYSTEM_NAMES = ['equal', 'just-root', 'just-tonic', 'just-common', 'pythagorean', 'meantone', 'scala'] as const
@@ -54,7 +56,7 @@ export const SystemOptions = z.object({
 export type SystemOptions = z.infer<typeof SystemOptions>
 
 export const DrillPart = z.object({
-  name: z.string().trim().min(1).max(60),
+  name: userText(60),
   /** Instrument id from shared/tuning/transpose.ts (e.g. 'voice-soprano', 'trumpet-bb'); concert pitch when absent. */
   instrument: z.string().min(1).optional(),
 })
@@ -63,14 +65,14 @@ export const DrillChord = z.object({
   /** Length in beats (the tempo's beat). */
   beats: z.number().positive().max(64),
   /** Optional chord symbol ("C", "Am7", "G7/B"); settles ambiguous sets. */
-  symbol: z.string().trim().min(1).max(20).optional(),
+  symbol: userText(20).optional(),
   /** Concert-pitch note with octave per part name ("Bb3", "F#4", "Cx5"), or null for a rest. */
   notes: z.record(z.string(), z.string().min(2).max(6).nullable()),
 })
 
 /** A drill document: what a director authors, imports from MIDI, and the analysis aligns to. */
 export const DrillDocument = z.object({
-  title: z.string().trim().min(1).max(120),
+  title: userText(120),
   /** Key as "<tonic> major|minor", e.g. "Eb major". */
   key: z.string().regex(/^[A-Ga-g](#{1,2}|b{1,2}|x)?\s+(major|minor)$/, 'a key such as "Eb major"').default('C major'),
   /** Beats per minute. */
@@ -127,17 +129,18 @@ export function parseDrill(input: unknown): DrillDocument {
   let value = input
   if (typeof input === 'string') {
     try { value = JSON.parse(input) } catch (e) {
-      throw new TuningError('invalid_json', `The drill document is not valid JSON: ${(e as Error).message}`)
+      const place = jsonErrorPlace(input)
+      throw new TuningError('invalid_json', `The drill document is not valid JSON${place ? ` (${place})` : ''}`, place)
     }
   }
-  const result = DrillDocument.safeParse(value)
+  const result = DrillDocument.safeParse(value, { error: plainIssueMessage })
   if (!result.success) throw fromZod(result.error, 'drill', '')
   return result.data
 }
 
 /** Validates tuning-system options and fills in defaults; errors name the field as "system.<field>". */
 export function parseSystem(input: unknown): SystemOptions {
-  const result = SystemOptions.safeParse(input)
+  const result = SystemOptions.safeParse(input, { error: plainIssueMessage })
   if (!result.success) throw fromZod(result.error, 'system', 'system')
   return result.data
 }

@@ -1,9 +1,11 @@
 import { z } from 'zod'
 import { A4_MAX, A4_MIN, SystemOptions } from '../drill/schema'
+import { Id } from './id'
 
 // Take forms and the routes that receive them: one validation on both sides.
 
-const id = z.coerce.number().int().positive().max(Number.MAX_SAFE_INTEGER)
+// Ids in plain decimal only ("01", "1e1" and "0x10" are refused, not read as other records).
+const id = Id
 const blankIsAbsent = z.literal('').transform(() => undefined)
 
 /** Text fields of POST /api/takes (multipart; they must come before the `audio` file). */

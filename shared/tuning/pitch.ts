@@ -1,5 +1,6 @@
 import { Note } from '@tonaljs/tonal'
 import { TuningError } from './errors'
+import { describeValue } from '../text'
 
 /** Reference pitch limits (A4 in Hz) the product supports, from Baroque 415 to high 466. */
 export const A4_MIN = 415
@@ -26,7 +27,7 @@ function normalise(name: string): string {
 const LETTER_FIFTHS: Record<string, number> = { F: -1, C: 0, G: 1, D: 2, A: 3, E: 4, B: 5 }
 
 function describe(name: unknown): string {
-  return typeof name === 'string' ? `"${name}"` : String(name)
+  return describeValue(name)
 }
 
 /** Parses a note with octave ("Bb3", "F#4", "Cx5", "Ebb2", "B♭3"); throws TuningError('unknown_note'). */

@@ -125,7 +125,8 @@ export function computeTargets(drillInput: DrillDocument | unknown, systemInput?
     case 'meantone': {
       let fraction: Ratio
       try { fraction = toRatio(system.fraction) } catch (e) {
-        throw new TuningError('bad_fraction', `The meantone fraction is not valid: ${(e as Error).message}`, 'system.fraction')
+        const why = e instanceof TuningError ? `: ${e.message}` : ''
+        throw new TuningError('bad_fraction', `The meantone fraction is not valid${why}`, 'system.fraction')
       }
       fixed = meantone(tonic, fraction, { start: system.start, wolf: system.wolf, mode: key.mode }); description = fixed.description; break
     }

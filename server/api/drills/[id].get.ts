@@ -1,8 +1,9 @@
 import { z } from 'zod'
 import { computeTargets } from '../../../shared/tuning/index'
 import type { DrillView } from '../../../shared/types/drill-view'
+import { Id } from '../../../shared/schemas/id'
 
-const Query = z.object({ assignmentId: z.coerce.number().int().positive().optional() })
+const Query = z.object({ assignmentId: Id.optional() })
 
 // GET /api/drills/:id → { id, ensembleId, ensembleName, role, document, targets, preselectedPart,
 // openAssignments (the caller's, each with its part), limits (of a take upload) }

@@ -2,7 +2,7 @@
 import { readFileSync } from 'node:fs'
 import { join } from 'node:path'
 import { describe, expect, it } from 'vitest'
-import { normaliseRange } from '../../../server/utils/storage'
+import { normaliseRange } from '../../../server/utils/range'
 import { sniffAudio, AUDIO_MIME } from '../../../server/utils/audio-sniff'
 
 const FIXTURES = join(import.meta.dirname, '../../fixtures/audio')

@@ -1,36 +1,42 @@
-// GET /takes/:id/audio → the original upload, with Range requests (206), to the people who may
-// hear it (the player, their section leader, directors, site admins); 404 to anyone else.
+// GET (and HEAD: audio.head.ts) /takes/:id/audio → the original upload, with one byte range per
+// request (206), to the people who may hear it (the player, their section leader, directors,
+// site admins); 404 to anyone else.
 export default defineEventHandler(async (event) => {
   const user = await requireUser(event).catch(() => null)
   const { id } = validateParams(event, IdParams)
-  const db = useDb()
-  const access = user ? await findTakeForUser(db, user, id) : null
+  const access = user ? await findTakeForUser(useDb(), user, id) : null
   if (!access) throw apiError(404, 'not_found', 'Not found')
-  const size = access.take.bytes
-  const range = normaliseRange(getRequestHeader(event, 'range'), size)
-  const unsatisfiable = (total: number | null) => {
-    setResponseStatus(event, 416)
-    if (total != null) setResponseHeader(event, 'Content-Range', `bytes */${total}`)
-    return ''
-  }
-  if (range === 'unsatisfiable') return unsatisfiable(size)
   const store = await useObjectStore()
-  let obj
-  try {
-    obj = await store.get(access.take.objectKey, range ? { range } : {})
-  } catch (err) {
-    if (err instanceof RangeNotSatisfiableError) return unsatisfiable(err.totalBytes)
-    throw err
-  }
-  if (!obj) throw apiError(404, 'not_found', 'Not found')
-  setResponseStatus(event, obj.status)
+  const key = access.take.objectKey
+  const size = access.take.bytes ?? (await store.head(key))?.contentLength ?? null
+  if (size == null) throw apiError(404, 'not_found', 'Not found')
   setResponseHeaders(event, {
-    'Content-Type': access.take.mime ?? obj.contentType ?? 'application/octet-stream',
-    'Content-Length': String(obj.contentLength),
+    'Content-Type': access.take.mime ?? 'application/octet-stream',
     'Accept-Ranges': 'bytes',
     'Cache-Control': 'private, no-store',
     'Content-Disposition': `inline; filename="take-${id}"`,
-    ...(obj.contentRange ? { 'Content-Range': obj.contentRange } : {}),
   })
-  return sendStream(event, obj.body)
+  const range = parseByteRange(getRequestHeader(event, 'range'), size)
+  if (range === 'unsatisfiable') {
+    setResponseStatus(event, 416)
+    setResponseHeader(event, 'Content-Range', `bytes */${size}`)
+    return ''
+  }
+  const want = range ?? { start: 0, end: size - 1 }
+  setResponseStatus(event, range ? 206 : 200)
+  setResponseHeader(event, 'Content-Length', want.end - want.start + 1)
+  if (range) setResponseHeader(event, 'Content-Range', `bytes ${want.start}-${want.end}/${size}`)
+  if (event.method === 'HEAD') {
+    event.node.res.end() // the headers above, no body
+    return null
+  }
+  let obj
+  try {
+    obj = await store.get(key, range ? { range: `bytes=${want.start}-${want.end}` } : {})
+  } catch (err) {
+    if (err instanceof RangeNotSatisfiableError) throw apiError(404, 'not_found', 'Not found')
+    throw err
+  }
+  if (!obj) throw apiError(404, 'not_found', 'Not found')
+  return sendStream(event, range ? exactRange(obj.body, parseContentRange(obj.contentRange), want) : obj.body)
 })

@@ -1,7 +1,8 @@
 import { z } from 'zod'
 import type { DrillImportResult } from '../../../../../shared/types/drill-view'
+import { userText } from '../../../../../shared/schemas/text'
 
-const Fields = z.object({ title: z.string().trim().max(120).optional() })
+const Fields = z.object({ title: userText(120, 0).optional() })
 
 // POST /api/ensembles/:id/drills/import (multipart: `file` = drill JSON or .mid, optional `title`)
 // → 201 { id, parts: [names], chords: N } (directors).

@@ -1,6 +1,8 @@
-// Caps every non-multipart request body at runtimeConfig.maxJsonBytes (413). The body is read
-// here with the cap and handed to h3, so routes read it as usual. Multipart uploads are streamed
-// by their own routes, which enforce their own limit.
+// Request bodies: under /api/ a body is JSON or a multipart upload, anything else is refused with
+// 415 before it is read (a text/plain post is the one kind another site can send without asking).
+// Every non-multipart body is capped at runtimeConfig.maxJsonBytes (413), read here with the cap
+// and handed to h3, so routes read it as usual. Multipart uploads are streamed by their own
+// routes, which enforce their own limit (and JSON routes refuse them: readJsonBody).
 const RAW_BODY = Symbol.for('h3RawBody')
 const PAYLOAD_METHODS = new Set(['POST', 'PUT', 'PATCH', 'DELETE'])
 
@@ -10,6 +12,9 @@ export default defineEventHandler(async (event) => {
   if ('__unenv__' in req || RAW_BODY in req || req.body !== undefined) return // in-process request
   const type = String(req.headers['content-type'] ?? '').toLowerCase()
   if (type.startsWith('multipart/form-data')) return
+  const declaredLength = Number.parseInt(String(req.headers['content-length'] ?? ''), 10)
+  const hasBody = declaredLength > 0 || /\bchunked\b/i.test(String(req.headers['transfer-encoding'] ?? ''))
+  if (hasBody && event.path.startsWith('/api/') && !isJsonContentType(type)) throw unsupportedMediaType()
 
   const max = Number(useRuntimeConfig().maxJsonBytes)
   const tooLarge = () => {

@@ -1,0 +1,9 @@
+// Public settings that depend on server-only ones: the pages learn whether the development
+// mailbox is on (it follows the object store and SMTP settings) through this request's copy of
+// the public runtime config.
+export default defineNitroPlugin((nitroApp) => {
+  nitroApp.hooks.hook('request', (event) => {
+    // A boolean replaces the 'auto' of nuxt.config.ts, so the pages read true or false.
+    ;(useRuntimeConfig(event).public as { devMailbox: unknown }).devMailbox = devMailboxEnabled()
+  })
+})
