@@ -1,3 +1,5 @@
+import { fileURLToPath } from 'node:url'
+
 // Runtime settings: every key below can be set by its NUXT_* environment variable
 // (e.g. dbFile ← NUXT_DB_FILE, storage.endpoint ← NUXT_STORAGE_ENDPOINT). The defaults run
 // the whole product embedded on loopback: a SQLite file, a local S3-compatible object store
@@ -104,6 +106,12 @@ export default defineNuxtConfig({
     },
   },
   hooks: {
+    // JSON errors under /api/ whatever the Accept header: our handler runs before the page one.
+    'nitro:config'(config) {
+      const own = fileURLToPath(new URL('./server/error-handler.ts', import.meta.url))
+      const others = config.errorHandler ? (Array.isArray(config.errorHandler) ? config.errorHandler : [config.errorHandler]) : []
+      config.errorHandler = [own, ...others.filter(h => h !== own)]
+    },
     // Keep the development hot-reload socket on loopback like the rest of the product.
     // The server-side Vite has hot reload off but would still open a socket on every interface.
     'vite:extendConfig'(config) {

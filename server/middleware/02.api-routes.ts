@@ -4,11 +4,14 @@
 // without the body (Node sends no body for HEAD).
 import { handlers } from '#nitro-internal-virtual/server-handlers'
 
-const table = routeTable(handlers)
+// Built on the first request: the handler list includes this middleware, so it is not ready
+// while this module is being loaded.
+let table: RouteTable | null = null
 
 export default defineEventHandler((event) => {
   const path = event.path
   if (path !== '/api' && !path.startsWith('/api/') && !path.startsWith('/api?')) return
+  table ??= routeTable(handlers)
   const methods = table.methodsFor(path)
   if (methods === 'all') return
   if (!methods.size) throw apiError(404, 'not_found', 'No such API route')

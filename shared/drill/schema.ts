@@ -4,7 +4,7 @@ import type { TuningIssue } from '../tuning/errors'
 import { parseKey, parseNote, parsePitchClass } from '../tuning/pitch'
 import { parseScala } from '../tuning/scala'
 import { INSTRUMENTS } from '../tuning/transpose'
-import { jsonErrorPlace, plainIssueMessage } from '../text'
+import { jsonErrorPlace, plainIssueMessage, stripBidi } from '../text'
 import { userText } from '../schemas/text'
 
 /** Tuning systems a drill can be scored against (names are ours; the maths is the trade's). */
@@ -67,7 +67,9 @@ export const DrillChord = z.object({
   /** Optional chord symbol ("C", "Am7", "G7/B"); settles ambiguous sets. */
   symbol: userText(20).optional(),
   /** Concert-pitch note with octave per part name ("Bb3", "F#4", "Cx5"), or null for a rest. */
-  notes: z.record(z.string(), z.string().min(2).max(6).nullable()),
+  notes: z.record(z.string(), z.string().min(2).max(6).nullable())
+    // Keyed by part name, cleaned as part names are (bidirectional controls, outer spaces).
+    .transform(notes => Object.fromEntries(Object.entries(notes).map(([part, note]) => [stripBidi(part).trim(), note]))),
 })
 
 /** A drill document: what a director authors, imports from MIDI, and the analysis aligns to. */
