@@ -24,16 +24,6 @@ export function parseByteRange (header: string | undefined, size: number): ByteR
   return { start, end }
 }
 
-/** The range as an explicit "bytes=a-b" header value for the store (or null for the whole object). */
-export function normaliseRange (header: string | undefined, size: number | null): string | 'unsatisfiable' | null {
-  if (size == null) {
-    const m = header ? /^\s*bytes\s*=\s*(\d+)\s*-\s*(\d*)\s*$/i.exec(header) : null
-    return m ? `bytes=${m[1]}-${m[2]}` : null
-  }
-  const r = parseByteRange(header, size)
-  return r === null || r === 'unsatisfiable' ? r : `bytes=${r.start}-${r.end}`
-}
-
 /** First and last byte of a Content-Range value ("bytes 0-99/1000"), or null. */
 export function parseContentRange (value: string | null | undefined): ByteRange | null {
   const m = value ? /^bytes (\d+)-(\d+)\/(\d+|\*)$/.exec(value.trim()) : null

@@ -126,6 +126,26 @@ describe('answers under /api/', () => {
   })
 })
 
+describe('headers', () => {
+  it('gives pages a policy with frame-ancestors \'none\', HSTS, and no x-powered-by', async () => {
+    const r = await app.fetch('/login')
+    expect(r.headers.get('content-type')).toMatch(/text\/html/)
+    const csp = r.headers.get('content-security-policy') ?? ''
+    expect(csp).toContain("frame-ancestors 'none'")
+    expect(csp).toMatch(/script-src 'self' 'sha256-[A-Za-z0-9+/=]+'/)
+    expect(csp).not.toMatch(/unsafe-eval|script-src[^;]*unsafe-inline/)
+    expect(r.headers.get('x-powered-by')).toBeNull()
+    // RFC 6797 §6.1: max-age is required; one year is common practice.
+    expect(r.headers.get('strict-transport-security')).toBe('max-age=31536000; includeSubDomains')
+  })
+
+  it('lets nothing run in or frame a JSON answer', async () => {
+    const r = await app.fetch('/api/health')
+    expect(r.headers.get('content-security-policy')).toBe("default-src 'none'; media-src 'self'; frame-ancestors 'none'")
+    expect(r.headers.get('x-powered-by')).toBeNull()
+  })
+})
+
 describe('ids', () => {
   // Decision: an id is a positive whole number in plain decimal; anything else is 400.
   it.each(['%201', '0x10', '1e1', '01', '+1', '1.0', '0', '-1', '1%20'])('GET /api/takes/%s is 400', async (id) => {

@@ -2,7 +2,7 @@
 // and the drill page run with it and log no violation, and no other site may frame a page.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
-import { demoAccounts, launchBrowser, startApp, type App } from './harness'
+import { CHROMIUM, CHROMIUM_ARGS, demoAccounts, launchBrowser, startApp, type App } from './harness'
 import { waitForTake } from './takes-helpers'
 
 let app: App
@@ -96,6 +96,44 @@ describe('content security policy in the browser', () => {
       expect(await violations()).toEqual([])
       expect(console.filter(m => /Content Security Policy|Refused to/i.test(m))).toEqual([])
     } finally { await close() }
+  })
+
+  it('lets the recorder take the microphone and play the recording back from a blob: address', { timeout: 240_000 }, async () => {
+    // Chromium's fake microphone (a test tone) stands in for a singer.
+    const { chromium } = await import('playwright-core')
+    const withMic = await chromium.launch({ executablePath: CHROMIUM, headless: true, args: [...CHROMIUM_ARGS, '--use-fake-device-for-media-stream', '--use-fake-ui-for-media-stream'] })
+    try {
+      const singer = demoAccounts().find(a => a.role === 'player' && /choir/i.test(a.ensemble))!.email
+      const singerCookie = await app.login(singer)
+      const context = await withMic.newContext({ viewport: { width: 390, height: 900 } })
+      await context.grantPermissions(['microphone'], { origin: app.url })
+      const [name, value] = singerCookie.split(';')[0]!.split('=') as [string, string]
+      await context.addCookies([{ name, value, url: app.url }])
+      const page = await context.newPage()
+      page.setDefaultTimeout(60_000)
+      const console: string[] = []
+      page.on('console', m => console.push(m.text()))
+      await page.addInitScript(() => {
+        const seen: string[] = []
+        ;(window as unknown as { __violations: string[] }).__violations = seen
+        document.addEventListener('securitypolicyviolation', e => seen.push(`${e.violatedDirective} ${e.blockedURI}`))
+      })
+      await page.goto(`${app.url}/takes/new?drillId=${drillId}`)
+      const record = page.getByRole('radio', { name: 'Record here' })
+      await page.locator('label', { has: record }).click()
+      await page.getByRole('button', { name: /Use the microphone/ }).click()
+      await page.getByRole('button', { name: 'Start recording' }).click()
+      await page.getByText(/Recording \d/).waitFor()
+      await page.waitForTimeout(1500)
+      await page.getByRole('button', { name: 'Stop', exact: true }).first().click()
+      const listen = page.getByTestId('listen-back')
+      await listen.waitFor()
+      expect(await listen.getAttribute('src')).toMatch(/^blob:/)
+      // The recording loads in the audio element: media from blob: is allowed.
+      await page.waitForFunction(() => ((document.querySelector('[data-testid="listen-back"]') as HTMLAudioElement | null)?.readyState ?? 0) >= 1)
+      expect(await page.evaluate(() => [...(window as unknown as { __violations: string[] }).__violations])).toEqual([])
+      expect(console.filter(m => /Content Security Policy|Refused to/i.test(m))).toEqual([])
+    } finally { await withMic.close() }
   })
 
   it('cannot be framed by another page', async () => {
