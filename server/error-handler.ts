@@ -5,10 +5,10 @@
 import { send, setResponseHeaders, setResponseStatus } from 'h3'
 import type { NitroErrorHandler } from 'nitropack/types'
 
-const apiErrorHandler: NitroErrorHandler = (error, event, { defaultHandler }) => {
+const apiErrorHandler: NitroErrorHandler = async (error, event, { defaultHandler }) => {
   const path = event.path
   if (path !== '/api' && !path.startsWith('/api/') && !path.startsWith('/api?')) return
-  const res = defaultHandler(error, event, { json: true })
+  const res = await defaultHandler(error, event, { json: true })
   setResponseHeaders(event, res.headers)
   setResponseStatus(event, res.status, res.statusText)
   return send(event, JSON.stringify(res.body, null, 2))

@@ -245,8 +245,8 @@ describe('importers and uploads speak plainly', () => {
   })
 
   it('drops bidirectional controls from a drill title, part names and an upload\'s file name', async () => {
-    const doc = { ...triadDrill('Tuning \u202Eseton\u202C'), parts: [{ name: 'Sop\u2067rano\u2069', instrument: 'voice-soprano' }] }
-    doc.chords = doc.chords.map(c => ({ ...c, notes: { 'Sop\u2067rano\u2069': c.notes.Soprano } })) as typeof doc.chords
+    const base = triadDrill('Tuning \u202Eseton\u202C')
+    const doc = { ...base, parts: [{ name: 'Sop\u2067rano\u2069', instrument: 'voice-soprano' }], chords: base.chords.map(c => ({ ...c, notes: { 'Sop\u2067rano\u2069': c.notes.Soprano } })) }
     const drillId = await importDrill(app, cookie, ensemble, doc)
     const drill = await (await app.fetch(`/api/drills/${drillId}`, { cookie })).json() as { document: { title: string, parts: { name: string }[] } }
     expect(drill.document.title).toBe('Tuning seton')
