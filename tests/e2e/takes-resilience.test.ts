@@ -2,6 +2,7 @@
 // an object, an oversized upload is refused with 413, and a server killed in the middle of an
 // analysis finishes the job after a restart against the same data.
 import { mkdtempSync, rmSync } from 'node:fs'
+import { request as httpRequest } from 'node:http'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
@@ -91,9 +92,7 @@ describe('an upload over the size limit', () => {
     form.append('audio', new Blob([new Uint8Array(big)]), 'big.wav')
     // A streamed body has no Content-Length: the limit must hold while reading.
     const encoded = new Response(form)
-    const body = encoded.body!
-    const type = encoded.headers.get('content-type')!
-    const r = await app.fetch('/api/takes', { method: 'POST', body, headers: { 'content-type': type }, cookie: clara, duplex: 'half' } as RequestInit & { cookie: string })
+    const r = await postChunked(app.url + '/api/takes', encoded.headers.get('content-type')!, clara, new Uint8Array(await encoded.arrayBuffer()))
     expect(r.status).toBe(413)
     await new Promise(r => setTimeout(r, 800))
     expect(takeCount()).toBe(before.takes)
@@ -135,3 +134,26 @@ describe('a server killed in the middle of an analysis', () => {
     expect(app.output()).toMatch(/interrupted job\(s\) back in the queue/)
   })
 })
+
+/**
+ * Posts a body in chunks without a length (chunked transfer) with node:http. The server answers
+ * 413 and closes the connection before the whole body is sent, so a write error after the
+ * answer (EPIPE, ECONNRESET) is expected; fetch would report it instead of the answer.
+ */
+function postChunked (url: string, type: string, cookie: string, payload: Uint8Array): Promise<{ status: number }> {
+  return new Promise((resolve, reject) => {
+    let answered = false
+    const req = httpRequest(url, { method: 'POST', headers: { 'content-type': type, cookie } }, (res) => {
+      answered = true
+      res.resume()
+      res.on('end', () => resolve({ status: res.statusCode ?? 0 }))
+      res.on('error', reject)
+    })
+    req.on('error', (e: NodeJS.ErrnoException) => {
+      if (e.code !== 'EPIPE' && e.code !== 'ECONNRESET') reject(e)
+    })
+    req.on('close', () => { if (!answered) reject(new Error('the connection closed without an answer')) })
+    for (let i = 0; i < payload.length && !req.destroyed; i += 64 * 1024) req.write(payload.subarray(i, i + 64 * 1024))
+    req.end()
+  })
+}
