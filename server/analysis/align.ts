@@ -31,6 +31,8 @@ export interface AlignOptions {
   /** Range of the global tempo ratio take/drill searched (default 0.6–1.6). */
   minScale?: number
   maxScale?: number
+  /** A global map already known (from the holds' onsets): step 1 is skipped. */
+  map?: { offsetS: number, timeScale: number }
 }
 
 // Frame costs relative to "between holds" (which costs 0); negative = evidence for the hold.
@@ -198,32 +200,35 @@ export function alignHolds (tracks: CoarseTrack[], holds: ExpectedHold[], opts: 
     return total - 0.02 * Math.abs(Math.log(s)) * (span / hop)
   }
   let best = { o: -t0, s: 1, v: -Infinity }
-  // Coarse grid: 2 % in scale, 0.1 s in offset (holds are long against both), then a fine pass.
-  const nScales = Math.max(2, Math.round(Math.log(maxScale / minScale) / Math.log(1.02)) + 1)
-  const oStepCoarse = Math.max(5 * hop, takeDur / 2000)
-  for (let k = 0; k < nScales; k++) {
-    const s = minScale * Math.pow(maxScale / minScale, k / (nScales - 1))
-    const lo = -s * t0 - 0.25 * s * span
-    const hi = takeDur - s * t0 - 0.25 * s * span
-    for (let o = lo; o <= hi; o += oStepCoarse) {
-      const v = score(o, s, stride)
-      if (v > best.v) best = { o, s, v }
-    }
-  }
-  {
-    let fine = { ...best, v: score(best.o, best.s, 1) }
-    const s0 = best.s
-    const o0 = best.o
-    for (let ds = -0.015; ds <= 0.015 + 1e-9; ds += 0.0015) {
-      const s = s0 * (1 + ds)
-      // Keep the middle of the drill fixed while the scale moves.
-      const oc = o0 + (s0 - s) * (t0 + span / 2)
-      for (let q = -1.5 * oStepCoarse; q <= 1.5 * oStepCoarse + 1e-9; q += hop) {
-        const v = score(oc + q, s, 1)
-        if (v > fine.v) fine = { o: oc + q, s, v }
+  if (opts.map) best = { o: opts.map.offsetS, s: opts.map.timeScale, v: 0 }
+  else {
+    // Coarse grid: 2 % in scale, 0.1 s in offset (holds are long against both), then a fine pass.
+    const nScales = Math.max(2, Math.round(Math.log(maxScale / minScale) / Math.log(1.02)) + 1)
+    const oStepCoarse = Math.max(5 * hop, takeDur / 2000)
+    for (let k = 0; k < nScales; k++) {
+      const s = minScale * Math.pow(maxScale / minScale, k / (nScales - 1))
+      const lo = -s * t0 - 0.25 * s * span
+      const hi = takeDur - s * t0 - 0.25 * s * span
+      for (let o = lo; o <= hi; o += oStepCoarse) {
+        const v = score(o, s, stride)
+        if (v > best.v) best = { o, s, v }
       }
     }
-    best = fine
+    {
+      let fine = { ...best, v: score(best.o, best.s, 1) }
+      const s0 = best.s
+      const o0 = best.o
+      for (let ds = -0.015; ds <= 0.015 + 1e-9; ds += 0.0015) {
+        const s = s0 * (1 + ds)
+        // Keep the middle of the drill fixed while the scale moves.
+        const oc = o0 + (s0 - s) * (t0 + span / 2)
+        for (let q = -1.5 * oStepCoarse; q <= 1.5 * oStepCoarse + 1e-9; q += hop) {
+          const v = score(oc + q, s, 1)
+          if (v > fine.v) fine = { o: oc + q, s, v }
+        }
+      }
+      best = fine
+    }
   }
   const offset = best.o
   const scale = best.s

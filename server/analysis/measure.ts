@@ -31,7 +31,9 @@
 import { AnalysisError } from './errors'
 import type { DecodedAudio } from './decode'
 import { Pyramid, median, quantile } from './dsp'
-import { alignHolds } from './align'
+import { alignHolds, boundaryFrames } from './align'
+import { findOnsets, fitTimeMap, holdTiming } from './timing'
+import type { TimeMap } from './timing'
 import { coarseTrack, noteBands, octaveEvidence, refinePitch } from './pitch'
 import type { CoarseTrack, RefinedTrack } from './pitch'
 import { ENGINE_VERSION, WRONG_NOTE_CENTS } from './types'
@@ -98,11 +100,36 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
   if (clipWarn) warnings.push({ code: 'clipping', message: `${(100 * clippedShare).toFixed(1)} % of the sounding samples are clipped; record a little quieter next time` })
   if (peak < 0.01) warnings.push({ code: 'low_level', message: 'The recording is very quiet (peak below −40 dBFS); measurements may be less certain' })
 
-  const alignment = alignHolds(trackOf, notes)
+  // Time map: a first alignment from the pitch track alone, then the map refitted to the onsets
+  // it found (robust to missing and extra chords) and the holds placed again under that map.
+  const boundCache = new Map<CoarseTrack, Uint8Array>()
+  const bounds = trackOf.map((t) => {
+    if (!boundCache.has(t)) boundCache.set(t, boundaryFrames(t))
+    return boundCache.get(t)!
+  })
+  const onsetPairs = (f: ReturnType<typeof findOnsets>) => f.flatMap((o, i) => (o.onsetS === null ? [] : [{ drillS: notes[i]!.startS, takeS: o.onsetS }]))
+  let alignment = alignHolds(trackOf, notes)
+  let found = findOnsets(trackOf, alignment.placements, notes, bounds)
+  let map: TimeMap = { offsetS: alignment.offsetS, timeScale: alignment.timeScale }
+  const refit = fitTimeMap(onsetPairs(found))
+  if (refit) {
+    alignment = alignHolds(trackOf, notes, { map: refit })
+    found = findOnsets(trackOf, alignment.placements, notes, bounds)
+    map = fitTimeMap(onsetPairs(found)) ?? refit
+  }
+  // A repeated note with no re-articulation (a tie, legato singing): split at the drill's chord
+  // boundary under the map, and the hold says so (timing.start = 'chord_boundary').
+  for (let i = 1; i < notes.length; i++) {
+    const p = alignment.placements[i]!
+    const q = alignment.placements[i - 1]!
+    if (!p.found || !q.found || found[i]!.articulated) continue
+    const cut = map.offsetS + map.timeScale * notes[i]!.startS
+    if (cut > q.startS + 0.2 && cut < p.endS - 0.2) { q.endS = cut; p.startS = cut }
+  }
   progress(0.4)
 
   const holds: MeasuredHold[] = []
-  const scale = alignment.timeScale
+  const scale = map.timeScale
   // Frames the alignment gave to a hold: a missing hold never takes another hold's sound.
   const used = new Uint8Array(track.times.length)
   for (const p of alignment.placements) if (p.found) used.fill(1, Math.max(0, p.frameStart), Math.min(used.length, p.frameEnd))
@@ -115,6 +142,7 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
       m = missing(pyr, h, p.startS, p.endS, trackOf[i]!, used, durationS, expectedDur, clipWarn, opts.trace !== false)
     } else {
       m = measureHold(pyr, trackOf[i]!, h, p.startS, p.endS, expectedDur, clipWarn, opts.trace !== false)
+      m.timing = holdTiming(found[i]!, h, map)
     }
     holds.push(m)
     progress(0.4 + 0.6 * (i + 1) / notes.length)
@@ -130,7 +158,7 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
     take: { durationS, sampleRate: sr, channels: audio.channels },
     holds,
     timeScale: round(scale, 5),
-    offsetS: round(alignment.offsetS, 3),
+    offsetS: round(map.offsetS, 3),
     warnings,
     engine: ENGINE_VERSION,
   }

@@ -3,6 +3,7 @@
 import { Note } from '@tonaljs/tonal'
 import type { TargetsResult } from '../../shared/tuning/index'
 import { fitDrift } from './drift'
+import type { HoldTiming } from './timing'
 import { AnalysisError } from './errors'
 import type { HoldReasonCode, MeasuredHold, Measurement, MeasurementWarning } from './types'
 import { WRONG_NOTE_CENTS } from './types'
@@ -35,6 +36,8 @@ export interface ReportHold {
   steadyStartS: number | null
   steadyEndS: number | null
   centreErrorCents: number | null
+  /** Onset and release found, and how early or late against the beat under the take's time map; null when not placed. */
+  timing: HoldTiming | null
   trace?: Array<[number, number]>
 }
 
@@ -178,6 +181,7 @@ function scoreHold (m: MeasuredHold, t: TargetsResult['chords'][number]['notes']
     steadyStartS: m.steadyStartS,
     steadyEndS: m.steadyEndS,
     centreErrorCents: m.centreErrorCents,
+    timing: m.timing ?? null,
   }
   if (m.trace) out.trace = m.trace
   return out

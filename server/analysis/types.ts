@@ -1,3 +1,5 @@
+import type { HoldTiming } from './timing'
+
 // Shapes shared by the analysis modules. A Measurement holds only what was measured (Hz, times,
 // spread, vibrato): it does not depend on the tuning system, so a take can be re-scored against
 // any system or reference pitch without decoding it again.
@@ -50,6 +52,8 @@ export interface MeasuredHold {
   centreErrorCents: number | null
   /** Decimated f0 track over the hold for charts: [seconds, Hz]. */
   trace?: Array<[number, number]>
+  /** Onset and release found, and how early or late against the beat under the take's time map (holds placed in the take only). */
+  timing?: HoldTiming
 }
 
 export interface MeasurementWarning {
