@@ -5,7 +5,7 @@
 //        aubio-tools (aubiopitch): apt-get install -y fluidsynth timgm6mb-soundfont aubio-tools
 // Output: DIR (default storage/sampled-corpus/) holds one WAV per take and corpus.json (the takes,
 //         their drills and the truth of every hold). --fixtures also writes the few small takes the
-//         unit tests read to tests/fixtures/sampled/ (FLAC, made with Debian's flac).
+//         unit tests read to tests/fixtures/sampled/ (mono WAV) with truth.json, and stops.
 //
 // How the truth is known. Each take is a Standard MIDI File we write ourselves (1 tick = 1 ms):
 // one channel per voice, the voice's program, and pitch-bend messages every 10 ms carrying the
@@ -24,6 +24,7 @@ import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs'
 import { dirname, join } from 'node:path'
 import { fileURLToPath } from 'node:url'
 import { parseArgs } from 'node:util'
+import { encodeWav } from '../server/analysis/wav'
 
 export const SOUNDFONT = '/usr/share/sounds/sf2/TimGM6mb.sf2'
 const RATE = 44100
@@ -95,6 +96,10 @@ export interface TakeSpec {
   repeats: 'rearticulate' | 'tie'
   /** Silence between consecutive different notes, seconds. */
   gapS: number
+  /** What the measured part really plays when it is not the drill's notes (wrong notes). */
+  played?: Array<number | null>
+  /** Render rate (default 44 100 Hz). */
+  rate?: number
 }
 
 export interface HoldTruth {
@@ -215,15 +220,16 @@ interface Timed { onS: number, offS: number, midi: number, chords: number[] }
 function partNotes (spec: TakeSpec, part: PartSpec, late: boolean): Timed[] {
   const spb = 60 / spec.tempo
   const out: Timed[] = []
+  const notes = part.name === spec.part && spec.played ? spec.played : part.notes
   let beat = 0
   spec.beats.forEach((b, i) => {
-    const midi = part.notes[i] ?? null
+    const midi = notes[i] ?? null
     const start = spec.leadInS + beat * spb
     beat += b
     const end = spec.leadInS + beat * spb
     if (midi === null) return
     const prev = out[out.length - 1]
-    const next = part.notes[i + 1] ?? null
+    const next = notes[i + 1] ?? null
     if (prev && prev.midi === midi && spec.repeats === 'tie' && Math.abs(prev.offS - start) < 1e-9) {
       prev.chords.push(i)
       prev.offS = end - (next === midi ? 0 : spec.gapS)
@@ -294,10 +300,10 @@ function specToMidi (spec: TakeSpec, solo: number | null = null): Uint8Array {
   return writeSmf(events)
 }
 
-function render (midiBytes: Uint8Array, wavPath: string, work: string) {
+function render (midiBytes: Uint8Array, wavPath: string, work: string, rate = RATE) {
   const mid = `${wavPath}.mid`
   writeFileSync(mid, midiBytes)
-  execFileSync('fluidsynth', ['-ni', '-q', '-g', '0.6', '-r', String(RATE), '-F', wavPath, '-T', 'wav', SOUNDFONT, mid], { cwd: work, stdio: ['ignore', 'ignore', 'pipe'] })
+  execFileSync('fluidsynth', ['-ni', '-q', '-g', '0.6', '-r', String(rate), '-F', wavPath, '-T', 'wav', SOUNDFONT, mid], { cwd: work, stdio: ['ignore', 'ignore', 'pipe'] })
 }
 
 /**
@@ -367,11 +373,11 @@ function calibrate (program: number, midi: number, dir: string, cache: Record<st
  */
 function renderTake (spec: TakeSpec, dir: string, cal: Record<string, number>): RenderedTake {
   const file = join(dir, `${spec.id}.wav`)
-  render(specToMidi(spec), file, dir)
+  render(specToMidi(spec), file, dir, spec.rate)
   const part = spec.parts.find(p => p.name === spec.part)!
   const soloTracks = part.voices.map((_, vi) => {
     const wav = join(dir, `${spec.id}.solo${vi}.wav`)
-    render(specToMidi(spec, vi), wav, dir)
+    render(specToMidi(spec, vi), wav, dir, spec.rate)
     return aubioTracks(wav)
   })
   const holds: HoldTruth[] = []
@@ -474,10 +480,76 @@ export function missingTool (): string | null {
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..')
 
+/** The small takes the unit tests read (16 kHz, mono 16-bit WAV, about 300 kB each): a trumpet line with a wrong note
+ *  and a tied repeat, and a sung line (voice oohs) with vibrato and a note an octave low. */
+export function fixtureSpecs (): TakeSpec[] {
+  const beats = [2, 2, 2, 2, 2, 2]
+  return [
+    {
+      id: 'trumpet-wrong-tie', kind: 'instrument', label: 'Trumpet (56): chord 3 played three semitones high, chords 5–6 tied',
+      tempo: 90, beats, part: 'P', parts: [{ name: 'P', notes: [60, 62, 64, 65, 67, 67], voices: [{ program: 56, detuneCents: 0, vibrato: null }] }],
+      played: [60, 62, 67, 65, 67, 67], offsets: [5, -8, 0, 12, -4, 6], driftCentsPerMin: 0, leadInS: 0.8, lateS: [0.02, 0.05, 0, 0.03, 0.06, 0],
+      repeats: 'tie', gapS: 0.1, rate: 16000,
+    },
+    {
+      id: 'oohs-octave', kind: 'voice', label: 'Voice oohs (53) with vibrato ±15 ¢: chord 4 sung an octave low',
+      tempo: 80, beats, part: 'P', parts: [{ name: 'P', notes: [64, 65, 67, 69, 67, 64], voices: [{ program: 53, detuneCents: 0, vibrato: { rateHz: 5.4, extentCents: 15, phase: 0.5 } }] }],
+      played: [64, 65, 67, 57, 67, 64], offsets: [-6, 3, 9, 0, -11, 4], driftCentsPerMin: 0, leadInS: 1.1, lateS: [0.04, 0, 0.07, 0.02, 0.05, 0.01],
+      repeats: 'rearticulate', gapS: 0.12, rate: 16000,
+    },
+  ]
+}
+
+/** Renders the fixtures into tests/fixtures/sampled/ (mono WAV from our own encoder) with their truth. */
+function writeFixtures () {
+  const out = join(root, 'tests', 'fixtures', 'sampled')
+  const work = join(root, 'storage', 'sampled-fixtures')
+  mkdirSync(out, { recursive: true })
+  const built = buildSampledCorpus(work, fixtureSpecs())
+  const takes = built.takes.map((t) => {
+    const name = `${t.spec.id}.wav`
+    writeFileSync(join(out, name), encodeWav(monoSamples(readFileSync(t.file)), t.spec.rate ?? RATE))
+    return { ...t, file: `${t.spec.id}.wav` }
+  })
+  const fluid = execFileSync('fluidsynth', ['--version'], { encoding: 'utf8' }).split('\n')[0]
+  writeFileSync(join(out, 'truth.json'), `${JSON.stringify({
+    made: { renderer: fluid, soundfont: 'TimGM6mb.sf2 (Debian timgm6mb-soundfont)', truth: 'aubiopitch (aubio-tools), multi-comb / YIN, each voice rendered alone' },
+    takes, calibration: built.calibration, bendCheck: built.bendCheck,
+  }, null, 1)}\n`)
+}
+
+/** A 16-bit WAV from FluidSynth as mono samples (the average of the channels). */
+function monoSamples (wav: Buffer): Float32Array {
+  let p = 12
+  let ch = 2
+  while (p + 8 <= wav.length) {
+    const id = wav.toString('ascii', p, p + 4)
+    const size = wav.readUInt32LE(p + 4)
+    if (id === 'fmt ') ch = wav.readUInt16LE(p + 10)
+    if (id === 'data') {
+      const frames = Math.floor(size / (2 * ch))
+      const out = new Float32Array(frames)
+      for (let i = 0; i < frames; i++) {
+        let v = 0
+        for (let c = 0; c < ch; c++) v += wav.readInt16LE(p + 8 + 2 * (i * ch + c))
+        out[i] = v / ch / 32768
+      }
+      return out
+    }
+    p += 8 + size + (size & 1)
+  }
+  throw new Error('no data chunk')
+}
+
 if (process.argv[1] && fileURLToPath(import.meta.url) === process.argv[1]) {
   const { values } = parseArgs({ options: { out: { type: 'string' }, fixtures: { type: 'boolean', default: false } } })
   const missing = missingTool()
   if (missing) { console.error(`sampled corpus: ${missing} is not installed`); process.exit(1) }
+  if (values.fixtures) {
+    writeFixtures()
+    console.log('fixtures written to tests/fixtures/sampled/')
+    process.exit(0)
+  }
   const dir = values.out ?? join(root, 'storage', 'sampled-corpus')
   const c = buildSampledCorpus(dir)
   console.log(`${c.takes.length} takes, ${c.takes.reduce((s, t) => s + t.holds.length, 0)} holds in ${dir}`)

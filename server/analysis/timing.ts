@@ -20,16 +20,18 @@ export interface TimeMap { offsetS: number, timeScale: number }
 
 interface Found { onsetS: number | null, releaseS: number | null, articulated: boolean }
 
-const near = (hz: number, expectedHz: number) => {
+// Within 0.6 semitone of the note heard (or an octave off: the coarse detector's slips).
+const near = (hz: number, refHz: number) => {
   if (!(hz > 0)) return false
-  const d = 12 * Math.log2(hz / expectedHz)
+  const d = 12 * Math.log2(hz / refHz)
   const oct = Math.round(d / 12)
-  return Math.abs(oct) <= 1 && Math.abs(d - 12 * oct) <= 1
+  return Math.abs(oct) <= 1 && Math.abs(d - 12 * oct) <= 0.6
 }
 
 /**
  * Onset and release of every placed hold from its coarse track: the first and last frames near
- * the expected note (or an octave off) at ≥ 30 % of the hold's median level, searched from
+ * the note heard there (the median pitch of the placed frames, which for a wrong note is not
+ * the expected one) at ≥ 30 % of the hold's median level, searched from
  * 0.15 s before to 0.3 s after the placed start (and to 0.25 s after the placed end). A hold that
  * directly follows the same note with no boundary (pitch change, energy dip) between them was
  * not re-articulated: its start is only the chord boundary.
@@ -41,12 +43,17 @@ export function findOnsets (tracks: CoarseTrack[], placements: HoldPlacement[], 
     const h = holds[i]!
     const F = tr.times.length
     const hop = tr.hopS
+    const heard: number[] = []
+    for (let j = p.frameStart; j < p.frameEnd && j < F; j++) if (tr.voiced[j]) heard.push(tr.hz[j]!)
+    if (heard.length < 3) return { onsetS: null, releaseS: null, articulated: false }
+    heard.sort((x, y) => x - y)
+    const refHz = heard[heard.length >> 1]!
     const lv: number[] = []
-    for (let j = p.frameStart; j < p.frameEnd && j < F; j++) if (tr.voiced[j] && near(tr.hz[j]!, h.expectedHz)) lv.push(tr.energy[j]!)
+    for (let j = p.frameStart; j < p.frameEnd && j < F; j++) if (tr.voiced[j] && near(tr.hz[j]!, refHz)) lv.push(tr.energy[j]!)
     if (lv.length < 3) return { onsetS: null, releaseS: null, articulated: false }
     lv.sort((a, b) => a - b)
     const thr = 0.3 * lv[lv.length >> 1]!
-    const ok = (j: number) => tr.voiced[j] === 1 && near(tr.hz[j]!, h.expectedHz) && tr.energy[j]! >= thr
+    const ok = (j: number) => tr.voiced[j] === 1 && near(tr.hz[j]!, refHz) && tr.energy[j]! >= thr
     let on = -1
     const a = Math.max(0, p.frameStart - Math.round(0.15 / hop))
     const b = Math.min(F - 1, p.frameStart + Math.round(0.3 / hop))
