@@ -122,6 +122,7 @@ export function reportJson (report: TakeReport): unknown {
       steadyStartS: h.steadyStartS,
       steadyEndS: h.steadyEndS,
       centreErrorCents: h.centreErrorCents,
+      timing: h.timing,
     })),
     summary: report.summary,
     tolerance: report.tolerance,
