@@ -1,20 +1,12 @@
 // Timing of the holds found: where each one starts and ends in the take, whether its start is an
 // onset the take shows or only the chord boundary (a tie or a legato repeat), and the take's
 // time map fitted robustly to the onsets.
+import type { HoldTiming } from '../../shared/types/take'
 import type { HoldPlacement } from './align'
 import type { CoarseTrack } from './pitch'
 import type { ExpectedHold } from './types'
 
-export interface HoldTiming {
-  /** Take time of the onset found (s), or null when the hold starts at a chord boundary with no re-articulation. */
-  onsetS: number | null
-  /** Take time where the sound of the hold ends (s), or null when it runs on into the next hold. */
-  releaseS: number | null
-  /** How the start was decided: an onset in the take, or the drill's chord boundary under the time map. */
-  start: 'onset' | 'chord_boundary'
-  /** Onset minus the chord's beat under the take's time map (s; positive = late), null without an onset. */
-  fromBeatS: number | null
-}
+export type { HoldTiming }
 
 export interface TimeMap { offsetS: number, timeScale: number }
 
