@@ -50,6 +50,12 @@ export function formatReport (drill: DrillDocument, report: TakeReport): string 
       rows.push([String(h.index + 1), h.note, h.member ?? '—', h.targetHz.toFixed(3), '—', '—', '—', '—', '—', '—', '—', '0'])
       continue
     }
+    if (h.centsFromTarget === null) {
+      // A different note was heard: its pitch, never a deviation.
+      rows.push([String(h.index + 1), h.note, h.member ?? '—', h.targetHz.toFixed(3), h.detectedHz.toFixed(3),
+        `heard ${h.heardNote ?? '?'}`, '—', '—', '—', '—', '—', h.confidence.toFixed(2)])
+      continue
+    }
     rows.push([
       String(h.index + 1), h.note, h.member ?? '—', h.targetHz.toFixed(3), h.detectedHz.toFixed(3),
       `${signed(h.centsFromTarget!, 2)} ¢`, `${signed(h.centsFromEqual!, 2)} ¢`, h.withinTolerance ? 'yes' : 'no',
@@ -63,15 +69,21 @@ export function formatReport (drill: DrillDocument, report: TakeReport): string 
   const parts = [`${s.holdsFound} of ${s.holdsExpected} holds found`]
   if (s.meanAbsCents !== null) parts.push(`mean |deviation| ${s.meanAbsCents.toFixed(2)} ¢`)
   if (s.withinToleranceShare !== null) parts.push(`${Math.round(100 * s.withinToleranceShare)} % within ±${report.tolerance} ¢`)
-  if (s.driftCentsPerMin !== null) parts.push(`drift ${signed(s.driftCentsPerMin, 2)} ¢/min`)
+  if (s.driftCentsPerMin !== null) {
+    const u = s.driftUncertaintyCentsPerMin
+    parts.push(`drift ${signed(s.driftCentsPerMin, 2)}${u !== null && u !== undefined ? ` ± ${u.toFixed(2)}` : ''} ¢/min`)
+  } else if (s.holdsFound > 0) {
+    parts.push('drift: not enough holds')
+  }
+  if (s.wrongNotes) parts.push(`${s.wrongNotes} wrong note${s.wrongNotes === 1 ? '' : 's'}`)
   lines.push(parts.join(' · '))
   const members = Object.keys(report.memberBias)
   if (members.length) {
     lines.push(`Bias by chord member: ${members.map(m => `${m} ${signed(report.memberBias[m]!, 2)} ¢ (${report.memberCounts[m]})`).join(' · ')}`)
   }
-  const missing = report.holds.filter(h => h.detectedHz === null)
+  const missing = report.holds.filter(h => h.centsFromTarget === null)
   if (missing.length) {
-    lines.push('Not measured:')
+    lines.push('Not scored:')
     for (const h of missing) lines.push(`  chord ${h.index + 1} (${h.note}): ${h.reason ?? 'no pitch found'}`)
   }
   for (const w of report.warnings) if (w.code !== 'holds_missing') lines.push(`Note: ${w.message}`)
@@ -100,6 +112,8 @@ export function reportJson (report: TakeReport): unknown {
       confidence: h.confidence,
       withinTolerance: h.withinTolerance,
       reason: h.reason,
+      heardNote: h.heardNote,
+      heardCentsFromExpected: h.heardCentsFromExpected,
       reasonCode: h.reasonCode,
       writtenNote: h.writtenNote,
       equalHz: h.equalHz,
@@ -108,6 +122,7 @@ export function reportJson (report: TakeReport): unknown {
       steadyStartS: h.steadyStartS,
       steadyEndS: h.steadyEndS,
       centreErrorCents: h.centreErrorCents,
+      timing: h.timing,
     })),
     summary: report.summary,
     tolerance: report.tolerance,

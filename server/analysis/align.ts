@@ -31,6 +31,8 @@ export interface AlignOptions {
   /** Range of the global tempo ratio take/drill searched (default 0.6–1.6). */
   minScale?: number
   maxScale?: number
+  /** A global map already known (from the holds' onsets): step 1 is skipped. */
+  map?: { offsetS: number, timeScale: number }
 }
 
 // Frame costs relative to "between holds" (which costs 0); negative = evidence for the hold.
@@ -49,6 +51,72 @@ const GAIN_FAR = -0.3
 const DURATION_WEIGHT_SHORT = 0.1
 const DURATION_WEIGHT_LONG = 0.3
 const POSITION_WEIGHT_PER_S = 5
+// A hold does not run across a boundary the take itself shows: a lasting pitch change or a
+// re-articulation (a short energy dip between two loud stretches). Each boundary strictly
+// inside a placed hold costs as much as the hold's expected length in matching frames.
+const BOUNDARY_MARGIN_S = 0.12
+
+/**
+ * Frames where the take shows a new note starting: the median pitch of the next five voiced
+ * frames differs from that of the previous five by more than 0.7 semitone (a lasting change,
+ * not one stray frame), or the energy dips below a quarter of the level on both sides within
+ * 0.6 s (a re-articulation or a breath). Local strongest points only.
+ */
+export function boundaryFrames (track: CoarseTrack): Uint8Array {
+  const F = track.times.length
+  const out = new Uint8Array(F)
+  const K = 5
+  const maxGap = Math.round(0.3 / track.hopS)
+  const semis = new Float64Array(F)
+  for (let j = 0; j < F; j++) semis[j] = track.voiced[j] ? 12 * Math.log2(track.hz[j]!) : NaN
+  const strength = new Float64Array(F)
+  const prev: number[] = []
+  for (let j = 0; j < F; j++) {
+    if (!track.voiced[j]) continue
+    const next: number[] = []
+    for (let q = j; q < F && next.length < K && q - j <= maxGap; q++) if (track.voiced[q]) next.push(semis[q]!)
+    const before = prev.filter(v => Number.isFinite(v))
+    if (before.length === K && next.length === K) {
+      const d = Math.abs(med(next) - med(before))
+      if (d > 0.7) strength[j] = d
+    }
+    prev.push(semis[j]!)
+    if (prev.length > K) prev.shift()
+    // Frames too far back do not count as "before".
+    if (j + 1 < F && !track.voiced[j + 1]) {
+      let q = j + 1
+      while (q < F && !track.voiced[q]) q++
+      if (q - j > maxGap) prev.length = 0
+    }
+  }
+  // Energy dips (in dB terms: below a quarter of the louder context on both sides).
+  const w = Math.max(2, Math.round(0.6 / track.hopS))
+  for (let j = 1; j < F - 1; j++) {
+    const e = track.energy[j]!
+    if (!(e < track.energy[j - 1]!) || !(e <= track.energy[j + 1]!)) continue
+    let l = 0
+    let r = 0
+    for (let q = Math.max(0, j - w); q < j; q++) l = Math.max(l, track.energy[q]!)
+    for (let q = j + 1; q <= Math.min(F - 1, j + w); q++) r = Math.max(r, track.energy[q]!)
+    if (l > track.gate && r > track.gate && e < 0.25 * l && e < 0.25 * r) strength[j] = Math.max(strength[j]!, 1)
+  }
+  const half = Math.max(1, Math.round(0.15 / track.hopS))
+  for (let j = 0; j < F; j++) {
+    if (!(strength[j]! > 0)) continue
+    let isMax = true
+    for (let q = Math.max(0, j - half); q <= Math.min(F - 1, j + half) && isMax; q++) {
+      if (strength[q]! > strength[j]! || (strength[q]! === strength[j]! && q < j)) isMax = false
+    }
+    if (isMax) out[j] = 1
+  }
+  return out
+}
+
+function med (v: number[]): number {
+  const s = [...v].sort((p, q) => p - q)
+  const m = s.length >> 1
+  return s.length % 2 ? s[m]! : (s[m - 1]! + s[m]!) / 2
+}
 
 function frameClass (hz: number, voiced: number, expectedHz: number): 0 | 1 | 2 | 3 | 4 {
   if (!voiced || !(hz > 0)) return 4
@@ -93,6 +161,15 @@ export function alignHolds (tracks: CoarseTrack[], holds: ExpectedHold[], opts: 
     gainPrefix.set(key, gp)
   })
   const cost = holds.map(h => costPrefix.get(keyOf(h.expectedHz))!)
+  // Boundaries the take shows, per distinct track, as prefix counts.
+  const boundPrefix = new Map<CoarseTrack, Float64Array>()
+  for (const tr of tracks) {
+    if (boundPrefix.has(tr)) continue
+    const bf = boundaryFrames(tr)
+    const bp = new Float64Array(F + 1)
+    for (let j = 0; j < F; j++) bp[j + 1] = bp[j]! + bf[j]!
+    boundPrefix.set(tr, bp)
+  }
   const gain = holds.map(h => gainPrefix.get(keyOf(h.expectedHz))!)
   // Frame index whose centre is the first at or after time t (rounding; exact halves do not matter).
   const invHop = 1 / hop
@@ -123,32 +200,35 @@ export function alignHolds (tracks: CoarseTrack[], holds: ExpectedHold[], opts: 
     return total - 0.02 * Math.abs(Math.log(s)) * (span / hop)
   }
   let best = { o: -t0, s: 1, v: -Infinity }
-  // Coarse grid: 2 % in scale, 0.1 s in offset (holds are long against both), then a fine pass.
-  const nScales = Math.max(2, Math.round(Math.log(maxScale / minScale) / Math.log(1.02)) + 1)
-  const oStepCoarse = Math.max(5 * hop, takeDur / 2000)
-  for (let k = 0; k < nScales; k++) {
-    const s = minScale * Math.pow(maxScale / minScale, k / (nScales - 1))
-    const lo = -s * t0 - 0.25 * s * span
-    const hi = takeDur - s * t0 - 0.25 * s * span
-    for (let o = lo; o <= hi; o += oStepCoarse) {
-      const v = score(o, s, stride)
-      if (v > best.v) best = { o, s, v }
-    }
-  }
-  {
-    let fine = { ...best, v: score(best.o, best.s, 1) }
-    const s0 = best.s
-    const o0 = best.o
-    for (let ds = -0.015; ds <= 0.015 + 1e-9; ds += 0.0015) {
-      const s = s0 * (1 + ds)
-      // Keep the middle of the drill fixed while the scale moves.
-      const oc = o0 + (s0 - s) * (t0 + span / 2)
-      for (let q = -1.5 * oStepCoarse; q <= 1.5 * oStepCoarse + 1e-9; q += hop) {
-        const v = score(oc + q, s, 1)
-        if (v > fine.v) fine = { o: oc + q, s, v }
+  if (opts.map) best = { o: opts.map.offsetS, s: opts.map.timeScale, v: 0 }
+  else {
+    // Coarse grid: 2 % in scale, 0.1 s in offset (holds are long against both), then a fine pass.
+    const nScales = Math.max(2, Math.round(Math.log(maxScale / minScale) / Math.log(1.02)) + 1)
+    const oStepCoarse = Math.max(5 * hop, takeDur / 2000)
+    for (let k = 0; k < nScales; k++) {
+      const s = minScale * Math.pow(maxScale / minScale, k / (nScales - 1))
+      const lo = -s * t0 - 0.25 * s * span
+      const hi = takeDur - s * t0 - 0.25 * s * span
+      for (let o = lo; o <= hi; o += oStepCoarse) {
+        const v = score(o, s, stride)
+        if (v > best.v) best = { o, s, v }
       }
     }
-    best = fine
+    {
+      let fine = { ...best, v: score(best.o, best.s, 1) }
+      const s0 = best.s
+      const o0 = best.o
+      for (let ds = -0.015; ds <= 0.015 + 1e-9; ds += 0.0015) {
+        const s = s0 * (1 + ds)
+        // Keep the middle of the drill fixed while the scale moves.
+        const oc = o0 + (s0 - s) * (t0 + span / 2)
+        for (let q = -1.5 * oStepCoarse; q <= 1.5 * oStepCoarse + 1e-9; q += hop) {
+          const v = score(oc + q, s, 1)
+          if (v > fine.v) fine = { o: oc + q, s, v }
+        }
+      }
+      best = fine
+    }
   }
   const offset = best.o
   const scale = best.s
@@ -180,6 +260,15 @@ export function alignHolds (tracks: CoarseTrack[], holds: ExpectedHold[], opts: 
     const cpf = cost[i]!
     const cp = new Float64Array(U + 1)
     for (let u = 0; u <= U; u++) cp[u] = cpf[u * step]!
+    const bpf = boundPrefix.get(tracks[i]!)!
+    const margin = Math.max(1, Math.round(BOUNDARY_MARGIN_S / hop))
+    const boundaryCost = Math.max(30, nExp * step)
+    // Boundaries inside [a, b) blocks, the first and last `margin` frames excepted.
+    const inner = (a: number, b: number) => {
+      const fa = Math.min(F, a * step + margin)
+      const fb = Math.max(0, b * step - margin)
+      return fb > fa ? bpf[fb]! - bpf[fa]! : 0
+    }
     const durPen = new Float64Array(Lmax + 1)
     // Duration prior in frame units, so it weighs like the per-frame costs.
     for (let L = Lmin; L <= Lmax; L++) {
@@ -197,7 +286,7 @@ export function alignHolds (tracks: CoarseTrack[], holds: ExpectedHold[], opts: 
       const aHi = Math.min(aMax, b - Lmin)
       const cpb = cp[b]!
       for (let a = aLo; a <= aHi; a++) {
-        const c = prev[a]! + cpb - cp[a]! + durPen[b - a]! + posW * Math.abs(a - m.a)
+        const c = prev[a]! + cpb - cp[a]! + durPen[b - a]! + posW * Math.abs(a - m.a) + boundaryCost * inner(a, b)
         if (c < v) { v = c; ch = a }
       }
       cur[b] = v

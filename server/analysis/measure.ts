@@ -3,10 +3,13 @@
 // steady-state statistics below turn the track into one centre per hold.
 //
 // Rules this module keeps (documented because a director acts on them):
+// - Wrong notes: a steady centre more than 50 ¢ (about half a semitone) from the expected
+//   note's equal-tempered pitch is a wrong note (wrong_note). Its pitch is measured like any
+//   other hold and kept in detectedHz so the report can say which note was heard, but it is
+//   never a tuning deviation. The same rule applies wherever the hold was found: placed by the
+//   alignment, or left unplaced because what sounded there was a clearly different note.
 // - Octave guard: the coarse detector's octave is checked against the harmonics. A hold played
-//   or sung an octave off is "not found" (octave_high / octave_low), never a 1200 ¢ deviation.
-// - A steady centre more than 350 ¢ from the expected note is a wrong note: "not found"
-//   (wrong_note) with the distance in the reason, not a huge deviation.
+//   or sung an octave off is a wrong note measured at the octave heard, never a 1200 ¢ deviation.
 // - Steady part: the main plateau of the hold (within 100 ¢ of its median), attack trimmed by
 //   12 % of its length (0.18–0.3 s) and release by 6 % (0.08–0.2 s), then extended past any
 //   settling transient still visible (smoothed residual > max(4 ¢, 3 SD)), at most 0.4 s more.
@@ -28,10 +31,14 @@
 import { AnalysisError } from './errors'
 import type { DecodedAudio } from './decode'
 import { Pyramid, median, quantile } from './dsp'
-import { alignHolds } from './align'
+import { alignHolds, boundaryFrames } from './align'
+import { findOnsets, fitTimeMap, holdTiming } from './timing'
+import type { TimeMap } from './timing'
 import { coarseTrack, noteBands, octaveEvidence, refinePitch } from './pitch'
 import type { CoarseTrack, RefinedTrack } from './pitch'
-import { ENGINE_VERSION } from './types'
+import { ENGINE_VERSION, WRONG_NOTE_CENTS } from './types'
+
+export { WRONG_NOTE_CENTS }
 import type { ExpectedHold, HoldReasonCode, MeasuredHold, Measurement, MeasurementWarning } from './types'
 
 export interface MeasureOptions {
@@ -41,8 +48,6 @@ export interface MeasureOptions {
   trace?: boolean
 }
 
-/** Largest allowed distance of a steady centre from the expected note before it counts as a wrong note. */
-export const WRONG_NOTE_CENTS = 350
 const SILENT_PEAK = 1e-4 // −80 dBFS
 const CLIPPED_ERROR_SHARE = 0.05
 const CLIPPED_WARN_SHARE = 0.001
@@ -95,20 +100,49 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
   if (clipWarn) warnings.push({ code: 'clipping', message: `${(100 * clippedShare).toFixed(1)} % of the sounding samples are clipped; record a little quieter next time` })
   if (peak < 0.01) warnings.push({ code: 'low_level', message: 'The recording is very quiet (peak below −40 dBFS); measurements may be less certain' })
 
-  const alignment = alignHolds(trackOf, notes)
+  // Time map: a first alignment from the pitch track alone, then the map refitted to the onsets
+  // it found (robust to missing and extra chords) and the holds placed again under that map.
+  const boundCache = new Map<CoarseTrack, Uint8Array>()
+  const bounds = trackOf.map((t) => {
+    if (!boundCache.has(t)) boundCache.set(t, boundaryFrames(t))
+    return boundCache.get(t)!
+  })
+  const onsetPairs = (f: ReturnType<typeof findOnsets>) => f.flatMap((o, i) => (o.onsetS === null ? [] : [{ drillS: notes[i]!.startS, takeS: o.onsetS }]))
+  let alignment = alignHolds(trackOf, notes)
+  let found = findOnsets(trackOf, alignment.placements, notes, bounds)
+  let map: TimeMap = { offsetS: alignment.offsetS, timeScale: alignment.timeScale }
+  const refit = fitTimeMap(onsetPairs(found))
+  if (refit) {
+    alignment = alignHolds(trackOf, notes, { map: refit })
+    found = findOnsets(trackOf, alignment.placements, notes, bounds)
+    map = fitTimeMap(onsetPairs(found)) ?? refit
+  }
+  // A repeated note with no re-articulation (a tie, legato singing): split at the drill's chord
+  // boundary under the map, and the hold says so (timing.start = 'chord_boundary').
+  for (let i = 1; i < notes.length; i++) {
+    const p = alignment.placements[i]!
+    const q = alignment.placements[i - 1]!
+    if (!p.found || !q.found || found[i]!.articulated) continue
+    const cut = map.offsetS + map.timeScale * notes[i]!.startS
+    if (cut > q.startS + 0.2 && cut < p.endS - 0.2) { q.endS = cut; p.startS = cut }
+  }
   progress(0.4)
 
   const holds: MeasuredHold[] = []
-  const scale = alignment.timeScale
+  const scale = map.timeScale
+  // Frames the alignment gave to a hold: a missing hold never takes another hold's sound.
+  const used = new Uint8Array(track.times.length)
+  for (const p of alignment.placements) if (p.found) used.fill(1, Math.max(0, p.frameStart), Math.min(used.length, p.frameEnd))
   for (let i = 0; i < notes.length; i++) {
     const h = notes[i]!
     const p = alignment.placements[i]!
     const expectedDur = scale * (h.endS - h.startS)
     let m: MeasuredHold
     if (!p.found) {
-      m = missing(h, p.startS, p.endS, trackOf[i]!, durationS)
+      m = missing(pyr, h, p.startS, p.endS, trackOf[i]!, used, durationS, expectedDur, clipWarn, opts.trace !== false)
     } else {
       m = measureHold(pyr, trackOf[i]!, h, p.startS, p.endS, expectedDur, clipWarn, opts.trace !== false)
+      m.timing = holdTiming(found[i]!, h, map)
     }
     holds.push(m)
     progress(0.4 + 0.6 * (i + 1) / notes.length)
@@ -124,7 +158,7 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
     take: { durationS, sampleRate: sr, channels: audio.channels },
     holds,
     timeScale: round(scale, 5),
-    offsetS: round(alignment.offsetS, 3),
+    offsetS: round(map.offsetS, 3),
     warnings,
     engine: ENGINE_VERSION,
   }
@@ -180,26 +214,58 @@ function notFound (h: ExpectedHold, startS: number, endS: number, code: HoldReas
   }
 }
 
-// A hold the alignment left empty: say what was there instead.
-function missing (h: ExpectedHold, startS: number, endS: number, track: CoarseTrack, durationS: number): MeasuredHold {
+// A hold the alignment left empty: say what was there instead. A clearly different steady
+// note is measured at the pitch heard and reported as a wrong note; nothing else is guessed.
+function missing (pyr: Pyramid, h: ExpectedHold, startS: number, endS: number, track: CoarseTrack, used: Uint8Array,
+  durationS: number, expectedDur: number, clipWarn: boolean, withTrace: boolean): MeasuredHold {
   if (startS >= durationS - 0.1) return notFound(h, startS, endS, 'beyond_take', 'The take ends before this chord')
   const beyond = endS > durationS + 0.05
   const a = Math.max(0, Math.floor(startS / track.hopS))
   const b = Math.min(track.times.length, Math.ceil(endS / track.hopS))
+  // The longest stretch of frames no other hold was placed on.
+  let runA = a
+  let runB = a
+  for (let j = a, cur = a; j <= b; j++) {
+    if (j === b || used[j]) {
+      if (j - cur > runB - runA) { runA = cur; runB = j }
+      cur = j + 1
+    }
+  }
   const cents: number[] = []
-  for (let j = a; j < b; j++) if (track.voiced[j]) cents.push(log2c(track.hz[j]! / h.expectedHz))
+  for (let j = runA; j < runB; j++) if (track.voiced[j]) cents.push(log2c(track.hz[j]! / h.expectedHz))
   if (cents.length >= Math.max(5, 0.3 * (b - a))) {
     const c = median(cents)
-    const semis = Math.round(Math.abs(c) / 100)
-    if (Math.abs(Math.abs(c) - 1200) < 60) {
-      return notFound(h, startS, endS, c > 0 ? 'octave_high' : 'octave_low', `Heard an octave ${c > 0 ? 'above' : 'below'} ${noteWord(h)}`)
-    }
     if (Math.abs(c) > WRONG_NOTE_CENTS) {
-      return notFound(h, startS, endS, 'wrong_note', `Heard a pitch about ${semis} semitone${semis === 1 ? '' : 's'} ${c > 0 ? 'above' : 'below'} ${noteWord(h)}`)
+      // Only the frames near the median note: a neighbouring chord inside the window is not it.
+      const near = cents.filter(v => Math.abs(v - c) <= 60)
+      if (near.length >= Math.max(5, 0.25 * (b - a))) {
+        const heardHz = h.expectedHz * Math.pow(2, median(near) / 1200)
+        const s0 = runA * track.hopS
+        const s1 = Math.min(runB * track.hopS, durationS)
+        const tr = refinePitch(pyr, s0, s1, heardHz)
+        const m = measureSteady(tr, h, s0, s1, expectedDur, clipWarn, withTrace)
+        if (m.detectedHz !== null) return asWrongNote(m, h)
+      }
     }
   }
   if (beyond) return notFound(h, startS, endS, 'beyond_take', 'The take ends during this chord')
   return notFound(h, startS, endS, 'no_pitch', `No steady pitch near ${noteWord(h)} where this chord should be`)
+}
+
+/** Cents of a measured hold from the expected note's equal-tempered pitch (null when none). */
+function centsFromExpected (m: MeasuredHold): number | null {
+  return m.detectedHz === null ? null : log2c(m.detectedHz / m.expectedHz)
+}
+
+// A measured hold whose pitch is a different note: the pitch is kept, the code says wrong_note.
+function asWrongNote (m: MeasuredHold, h: ExpectedHold): MeasuredHold {
+  const c = centsFromExpected(m)!
+  const semis = Math.round(c / 100)
+  const dir = c > 0 ? 'above' : 'below'
+  const what = Math.abs(semis) === 12
+    ? `an octave ${dir}`
+    : `about ${Math.abs(semis)} semitone${Math.abs(semis) === 1 ? '' : 's'} ${dir}`
+  return { ...m, reasonCode: 'wrong_note', reason: `Heard a different note: ${what} ${noteWord(h)}` }
 }
 
 interface Binned {
@@ -447,14 +513,26 @@ function measureHold (pyr: Pyramid, track: CoarseTrack, h: ExpectedHold, startS:
     if (Number.isFinite(fRef) && (oct !== 0 || oddMissing || track.reachHz > fRef / 2 / 1.02)) {
       const ev = octaveEvidence(pyr, startS, endS, fRef)
       const harm = Math.max(ev.odd, ev.even)
-      if (ev.even > 30 * ev.noise && ev.odd < 4 * ev.noise) {
-        return notFound(h, startS, endS, 'octave_high', `Heard an octave above ${noteWord(h)}`)
-      }
-      if (ev.half > 6 * ev.noise && ev.half > 0.03 * harm) {
-        return notFound(h, startS, endS, 'octave_low', `Heard an octave below ${noteWord(h)}`)
+      const octave = ev.even > 30 * ev.noise && ev.odd < 4 * ev.noise
+        ? 2
+        : ev.half > 6 * ev.noise && ev.half > 0.03 * harm ? 0.5 : 0
+      if (octave) {
+        // Measured at the octave heard and reported as a wrong note (never a 1200 ¢ deviation).
+        const tr2 = refinePitch(pyr, startS, endS, octave * fRef)
+        const m = measureSteady(tr2, h, startS, endS, expectedDur, clipWarn, withTrace)
+        if (m.detectedHz !== null && Math.abs(centsFromExpected(m)!) > WRONG_NOTE_CENTS) return asWrongNote(m, h)
+        return notFound(h, startS, endS, 'wrong_note', `Heard a different note: an octave ${octave > 1 ? 'above' : 'below'} ${noteWord(h)}`)
       }
     }
   }
+  const m = measureSteady(tr, h, startS, endS, expectedDur, clipWarn, withTrace)
+  if (m.detectedHz !== null && Math.abs(centsFromExpected(m)!) > WRONG_NOTE_CENTS) return asWrongNote(m, h)
+  return m
+}
+
+// The steady part of a refined track: plateau, trims, robust centre, spread, vibrato, confidence.
+function measureSteady (tr: RefinedTrack, h: ExpectedHold, startS: number, endS: number,
+  expectedDur: number, clipWarn: boolean, withTrace: boolean): MeasuredHold {
   const bins = binTrack(tr, h.expectedHz, startS, endS)
   const n = bins.c.length
   // Main plateau: the longest run (gaps ≤ 60 ms) within 100 ¢ of the run's median.
@@ -537,10 +615,6 @@ function measureHold (pyr: Pyramid, track: CoarseTrack, h: ExpectedHold, startS:
 
   const centre = fit.centre
   const steadyS = (hi - lo + 1) * BIN_S
-  if (Math.abs(centre) > WRONG_NOTE_CENTS) {
-    const semis = Math.round(Math.abs(centre) / 100)
-    return notFound(h, startS, endS, 'wrong_note', `Heard a pitch about ${semis} semitone${semis === 1 ? '' : 's'} ${centre > 0 ? 'above' : 'below'} ${noteWord(h)}`)
-  }
 
   // The steady residual e = c − centre − trend (gaps interpolated), split by a moving average
   // over one vibrato period (or 0.2 s without vibrato): its nulls fall on the vibrato rate and

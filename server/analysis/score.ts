@@ -1,8 +1,12 @@
 // Scoring: a system-independent Measurement against the targets of one tuning system. Pure and
 // cheap, so a take is re-scored against another system or reference pitch without decoding.
+import { Note } from '@tonaljs/tonal'
 import type { TargetsResult } from '../../shared/tuning/index'
+import { fitDrift } from './drift'
+import type { HoldTiming } from './timing'
 import { AnalysisError } from './errors'
 import type { HoldReasonCode, MeasuredHold, Measurement, MeasurementWarning } from './types'
+import { WRONG_NOTE_CENTS } from './types'
 
 export interface ReportHold {
   index: number
@@ -19,6 +23,10 @@ export interface ReportHold {
   confidence: number
   withinTolerance: boolean | null
   reason: string | null
+  /** Nearest equal-tempered note (concert) of what was heard, e.g. "E4"; null when nothing was heard. */
+  heardNote: string | null
+  /** Signed cents of the heard pitch from the expected note's equal-tempered pitch; null when nothing was heard. */
+  heardCentsFromExpected: number | null
   // Fields beyond the command line's fixed shape.
   reasonCode: HoldReasonCode | null
   writtenNote: string | null
@@ -28,6 +36,8 @@ export interface ReportHold {
   steadyStartS: number | null
   steadyEndS: number | null
   centreErrorCents: number | null
+  /** Onset and release found, and how early or late against the beat under the take's time map; null when not placed. */
+  timing: HoldTiming | null
   trace?: Array<[number, number]>
 }
 
@@ -42,12 +52,17 @@ export interface TakeReport {
     meanAbsCents: number | null
     /** Share (0–1) of the holds found that are within ± tolerance. */
     withinToleranceShare: number | null
-    /** Slope of cents-from-target against time over the take, cents per minute (negative = sagging flat). */
+    /** Slope of cents-from-target against time over the take, cents per minute (negative =
+     *  sagging flat), from a robust fit; null when its uncertainty is not smaller than its size. */
     driftCentsPerMin: number | null
     holdsFound: number
     holdsExpected: number
     /** Signed mean cents from target over the holds found. */
     meanCents: number | null
+    /** Standard error of the drift, cents per minute (null with fewer than three holds measured). */
+    driftUncertaintyCentsPerMin: number | null
+    /** Holds where a different note was heard (more than 50 ¢ from the expected note). */
+    wrongNotes: number
   }
   tolerance: number
   /** Mean signed cents from target per chord member over the holds found. */
@@ -87,19 +102,12 @@ export function scoreMeasurement (measurement: Measurement, targets: TargetsResu
   const mean = found.length ? found.reduce((s, h) => s + h.centsFromTarget!, 0) / found.length : null
   const within = found.length ? found.filter(h => h.withinTolerance).length / found.length : null
 
-  // Drift: least-squares slope of cents-from-target against the time of each hold's steady middle.
-  let drift: number | null = null
-  if (found.length >= 2) {
-    const ts = found.map(h => ((h.steadyStartS ?? h.startS) + (h.steadyEndS ?? h.endS)) / 2 / 60)
-    const ys = found.map(h => h.centsFromTarget!)
-    const tm = ts.reduce((s, v) => s + v, 0) / ts.length
-    const ym = ys.reduce((s, v) => s + v, 0) / ys.length
-    let sxx = 0
-    let sxy = 0
-    for (let i = 0; i < ts.length; i++) { sxx += (ts[i]! - tm) ** 2; sxy += (ts[i]! - tm) * (ys[i]! - ym) }
-    // Needs the holds to span at least a second.
-    if (sxx > 0 && Math.max(...ts) - Math.min(...ts) >= 1 / 60) drift = sxy / sxx
-  }
+  // Drift: robust slope of cents-from-target against the time of each hold's steady middle.
+  const drift = fitDrift(found.map(h => ({
+    tMin: ((h.steadyStartS ?? h.startS) + (h.steadyEndS ?? h.endS)) / 2 / 60,
+    cents: h.centsFromTarget!,
+    errorCents: h.centreErrorCents,
+  })))
 
   const memberSum: Record<string, number> = {}
   const memberCounts: Record<string, number> = {}
@@ -120,10 +128,12 @@ export function scoreMeasurement (measurement: Measurement, targets: TargetsResu
     summary: {
       meanAbsCents: absMean === null ? null : r3(absMean),
       withinToleranceShare: within === null ? null : r3(within),
-      driftCentsPerMin: drift === null ? null : r3(drift),
+      driftCentsPerMin: drift.centsPerMin === null ? null : r3(drift.centsPerMin),
       holdsFound: found.length,
       holdsExpected: holds.length,
       meanCents: mean === null ? null : r3(mean),
+      driftUncertaintyCentsPerMin: drift.uncertaintyCentsPerMin === null ? null : r3(drift.uncertaintyCentsPerMin),
+      wrongNotes: holds.filter(h => h.reasonCode === 'wrong_note').length,
     },
     tolerance,
     memberBias,
@@ -137,8 +147,15 @@ export function scoreMeasurement (measurement: Measurement, targets: TargetsResu
 
 function scoreHold (m: MeasuredHold, t: TargetsResult['chords'][number]['notes'][number], tolerance: number): ReportHold {
   const hz = m.detectedHz
-  const fromTarget = hz !== null ? cents(t.targetHz, hz) : null
   const fromEqual = hz !== null ? cents(t.equalHz, hz) : null
+  // One rule wherever the hold came from: more than ~half a semitone from the expected note is a
+  // different note (octave errors included), and a different note is never a tuning deviation.
+  const wrong = m.reasonCode === 'wrong_note' || m.reasonCode === 'octave_high' || m.reasonCode === 'octave_low' ||
+    (fromEqual !== null && Math.abs(fromEqual) > WRONG_NOTE_CENTS)
+  const fromTarget = hz !== null && !wrong ? cents(t.targetHz, hz) : null
+  const heard = fromEqual === null ? null : heardNoteName(t.note, t.midi, fromEqual)
+  let reason = m.reason
+  if (wrong) reason = wrongNoteReason(t.note, heard, fromEqual, m.reasonCode)
   const out: ReportHold = {
     index: m.index,
     note: t.note,
@@ -148,13 +165,15 @@ function scoreHold (m: MeasuredHold, t: TargetsResult['chords'][number]['notes']
     targetHz: t.targetHz,
     detectedHz: hz,
     centsFromTarget: fromTarget === null ? null : r3(fromTarget),
-    centsFromEqual: fromEqual === null ? null : r3(fromEqual),
+    centsFromEqual: fromEqual === null || wrong ? null : r3(fromEqual),
     spreadCents: m.spreadCents,
     slopeCentsPerS: m.slopeCentsPerS,
     confidence: m.confidence,
     withinTolerance: fromTarget === null ? null : Math.abs(fromTarget) <= tolerance,
-    reason: m.reason,
-    reasonCode: m.reasonCode,
+    reason,
+    heardNote: heard,
+    heardCentsFromExpected: fromEqual === null ? null : r3(fromEqual),
+    reasonCode: wrong ? 'wrong_note' : m.reasonCode,
     writtenNote: t.writtenNote,
     equalHz: t.equalHz,
     ratio: t.ratio,
@@ -162,7 +181,30 @@ function scoreHold (m: MeasuredHold, t: TargetsResult['chords'][number]['notes']
     steadyStartS: m.steadyStartS,
     steadyEndS: m.steadyEndS,
     centreErrorCents: m.centreErrorCents,
+    timing: m.timing ?? null,
   }
   if (m.trace) out.trace = m.trace
   return out
+}
+
+/** Nearest equal-tempered note to a pitch `centsFromEqual` away from the expected note, spelled
+ *  like the expected note when it is the same pitch class, else with flats after a flat note and
+ *  sharps otherwise. */
+export function heardNoteName (expected: string, expectedMidi: number, centsFromEqual: number): string | null {
+  if (!Number.isFinite(centsFromEqual)) return null
+  const semis = Math.round(centsFromEqual / 100)
+  const midi = expectedMidi + semis
+  if (midi < 0 || midi > 127) return null
+  const e = Note.get(expected)
+  if (!e.empty && e.oct !== undefined && e.oct !== null && semis % 12 === 0) return `${e.pc}${e.oct + semis / 12}`
+  return !e.empty && e.alt < 0 ? Note.fromMidi(midi) : Note.fromMidiSharps(midi)
+}
+
+function wrongNoteReason (expected: string, heard: string | null, fromEqual: number | null, code: HoldReasonCode | null): string {
+  if (heard === null || fromEqual === null) {
+    const dir = code === 'octave_low' ? 'below' : 'above'
+    return `Heard a different note: an octave ${dir} ${expected}`
+  }
+  const c = Math.round(fromEqual * 10) / 10
+  return `Heard ${heard} instead of ${expected} (${c > 0 ? '+' : c < 0 ? '−' : ''}${Math.abs(c).toFixed(1)} ¢ from ${expected})`
 }

@@ -1,3 +1,5 @@
+import type { HoldTiming } from './timing'
+
 // Shapes shared by the analysis modules. A Measurement holds only what was measured (Hz, times,
 // spread, vibrato): it does not depend on the tuning system, so a take can be re-scored against
 // any system or reference pitch without decoding it again.
@@ -19,8 +21,8 @@ export interface ExpectedHold {
 export type HoldReasonCode =
   | 'no_pitch' // nothing voiced near the expected note where the chord should be
   | 'beyond_take' // the take ends before or during the chord, and nothing was found
-  | 'octave_high' | 'octave_low' // sung/played an octave off the expected note
-  | 'wrong_note' // a steady pitch more than 350 ¢ from the expected note
+  | 'octave_high' | 'octave_low' // measurements stored before octave errors became wrong notes
+  | 'wrong_note' // a steady pitch more than 50 ¢ from the expected note (octave errors included); detectedHz keeps what was heard
   | 'too_short' // too little steady sound to measure
 
 export interface MeasuredHold {
@@ -28,7 +30,8 @@ export interface MeasuredHold {
   /** Where the hold was found in the take (or, when not found, where it was expected), seconds. */
   startS: number
   endS: number
-  /** Steady-state frequency (attack and release trimmed, vibrato averaged), or null when not found. */
+  /** Steady-state frequency (attack and release trimmed, vibrato averaged), or null when nothing
+   *  was heard. Kept for wrong notes (reasonCode wrong_note): the pitch that was heard instead. */
   detectedHz: number | null
   /** RMS about the centre of the steady pitch averaged over one vibrato period (0.2 s without vibrato), trend included, cents. */
   spreadCents: number | null
@@ -49,6 +52,8 @@ export interface MeasuredHold {
   centreErrorCents: number | null
   /** Decimated f0 track over the hold for charts: [seconds, Hz]. */
   trace?: Array<[number, number]>
+  /** Onset and release found, and how early or late against the beat under the take's time map (holds placed in the take only). */
+  timing?: HoldTiming
 }
 
 export interface MeasurementWarning {
@@ -69,3 +74,6 @@ export interface Measurement {
 
 /** Version tag stored with every measurement. */
 export const ENGINE_VERSION = 'driftline-analysis-1'
+
+/** Largest distance of a steady centre from the expected note's equal-tempered pitch before it counts as a wrong note (about half a semitone). */
+export const WRONG_NOTE_CENTS = 50

@@ -53,6 +53,20 @@ export interface ReportHold {
   heardNote?: string | null
   /** Signed cents of the heard pitch from the expected note's equal-tempered pitch (e.g. +300.0). */
   heardCentsFromExpected?: number | null
+  /** Onset and release found, and how early or late against the beat under the take's time map; null when not placed. */
+  timing?: HoldTiming | null
+}
+
+/** When a hold sounded in the take (seconds into the take). */
+export interface HoldTiming {
+  /** Onset found, or null when the hold starts at a chord boundary with no re-articulation. */
+  onsetS: number | null
+  /** Where the sound of the hold ends, or null when it runs on into the next hold. */
+  releaseS: number | null
+  /** How the start was decided: an onset in the take, or the drill's chord boundary under the time map. */
+  start: 'onset' | 'chord_boundary'
+  /** Onset minus the chord's beat under the take's time map (positive = late), null without an onset. */
+  fromBeatS: number | null
 }
 
 export interface TakeSummary {
@@ -68,6 +82,8 @@ export interface TakeSummary {
   holdsExpected: number
   /** Signed mean cents from target over the holds found. */
   meanCents?: number | null
+  /** Holds where a different note was heard (more than 50 ¢ from the expected note). */
+  wrongNotes?: number
 }
 
 export interface ReportWarning { code: string, message: string }

@@ -63,6 +63,28 @@ describe('driftline analyze', () => {
     expect(out).toMatch(/A4 = 442 Hz · tolerance ±5 ¢/)
     expect(out).toMatch(/2 of 2 holds found/)
     expect(out).toMatch(/Bias by chord member: third/)
+    // Two holds cannot tell a drift from scatter: no figure.
+    expect(out).toMatch(/drift: not enough holds/)
+  })
+
+  it('a wrong note shows the note heard, in the table and the JSON, never a deviation', async () => {
+    // The alto sings G4 (E4 + 3 semitones, common practice) in the first chord.
+    const wrong = synthTakeWithTruth({
+      sampleRate: 44100, durationS: 7.4, timbre: 'voice-alto', seed: 8, snrDb: 35,
+      holds: [{ startS: 1.04, endS: 3.8, hz: 261.6255653 * Math.pow(2, 7 / 12) }, { startS: 4.04, endS: 6.8, hz: 349.2282315 * 1.25 }],
+    })
+    const path = join(dir, 'wrong.wav')
+    writeFileSync(path, encodeWav(wrong.samples, 44100))
+    const table = await cli('--audio', path, '--drill', drillPath, '--part', 'Alto')
+    expect(table.code).toBe(0)
+    expect(table.out).toMatch(/heard G4/)
+    expect(table.out).toMatch(/1 wrong note/)
+    expect(table.out).toMatch(/chord 1 \(E4\): Heard G4 instead of E4 \(\+300\.0 ¢ from E4\)/)
+    const j = JSON.parse((await cli('--audio', path, '--drill', drillPath, '--part', 'Alto', '--json')).out)
+    expect(j.holds[0]).toMatchObject({ reasonCode: 'wrong_note', heardNote: 'G4', centsFromTarget: null, withinTolerance: null })
+    expect(j.holds[0].heardCentsFromExpected).toBeCloseTo(300, 1)
+    expect(j.holds[1].heardNote).toBe('A4')
+    expect(j.summary.holdsFound).toBe(1)
   })
 
   it('reads the drill from a Standard MIDI File', async () => {

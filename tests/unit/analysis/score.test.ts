@@ -94,9 +94,75 @@ describe('take figures', () => {
     // −3 ¢ per 3-s chord = −1 ¢/s = −60 ¢/min; the regression over the steady middles recovers it.
     expect(r.summary.driftCentsPerMin!).toBeGreaterThan(-62)
     expect(r.summary.driftCentsPerMin!).toBeLessThan(-58)
+    // Eight holds exactly on the line: the uncertainty is far below the 60 ¢/min value.
+    expect(r.summary.driftUncertaintyCentsPerMin!).toBeLessThan(1)
     // Mean |deviation| is the mean of 0, 3, …, 21 ¢ = 10.5 ¢.
     expect(r.summary.meanAbsCents!).toBeCloseTo(10.5, 1)
     expect(r.summary.withinToleranceShare).toBeCloseTo(4 / 8, 5) // 0, 3, 6, 9 ¢ are within ±10 ¢
+  })
+})
+
+describe('wrong notes in the report', () => {
+  // Five 2-s chords of E4 (MIDI 64); chord 2 sung three semitones high (G4), chord 4 an octave
+  // high (E5). Equal-tempered pitches 440·2^((n − 69)/12) (common practice).
+  const notes = ['E4', 'E4', 'E4', 'E4', 'E4']
+  const drill = { title: 'Wrong', key: 'C major', tempo: 60, parts: [{ name: 'Alto' }], chords: notes.map(n => ({ beats: 2, notes: { Alto: n } })) }
+  const expected = expectedHolds(drill, 'Alto')
+  const e4 = 440 * Math.pow(2, -5 / 12)
+  const played = [e4, e4 * Math.pow(2, 3 / 12), e4, 2 * e4, e4 * Math.pow(2, 4 / 1200)]
+  const syn = synthTakeWithTruth({
+    sampleRate: 44100, durationS: 11.5, timbre: 'voice-alto', seed: 8, snrDb: 35,
+    holds: expected.map((e, i) => ({ startS: 1 + e.startS + 0.04, endS: 1 + e.endS - 0.25, hz: played[i]! })),
+  })
+  const r = scoreMeasurement(measureTake(audioOf(syn.samples, 44100), expected), computeTargets(drill, { name: 'equal' }), 'Alto', 10)
+
+  it('says which note was heard and how far, and scores no deviation for it', () => {
+    const g = r.holds[1]!
+    expect(g.reasonCode).toBe('wrong_note')
+    expect(g.heardNote).toBe('G4') // E4 + 3 semitones (common practice)
+    expect(g.heardCentsFromExpected!).toBeCloseTo(300, 1)
+    expect(Math.abs(cents(g.detectedHz!, syn.holds[1]!.centreHz))).toBeLessThan(0.1)
+    expect(g.centsFromTarget).toBeNull()
+    expect(g.centsFromEqual).toBeNull()
+    expect(g.withinTolerance).toBeNull()
+    expect(g.reason).toMatch(/G4.*E4/)
+    const o = r.holds[3]!
+    expect(o.reasonCode).toBe('wrong_note')
+    expect(o.heardNote).toBe('E5') // one octave above E4
+    expect(o.heardCentsFromExpected!).toBeCloseTo(1200, 1)
+    expect(o.centsFromTarget).toBeNull()
+  })
+
+  it('right notes carry the heard note too, and the figures leave the wrong notes out', () => {
+    expect(r.holds[0]!.heardNote).toBe('E4')
+    expect(r.holds[4]!.heardCentsFromExpected!).toBeCloseTo(4, 1)
+    expect(r.summary.wrongNotes).toBe(2)
+    expect(r.summary.holdsFound).toBe(3)
+    // Mean |deviation| over 0, 0, +4 ¢ = 1.333 ¢: no 300 or 1200 ¢ leaks in.
+    expect(r.summary.meanAbsCents!).toBeCloseTo(4 / 3, 1)
+    for (const h of r.holds) if (h.centsFromTarget !== null) expect(Math.abs(h.centsFromTarget)).toBeLessThan(100)
+  })
+
+  it('a hold more than 50 ¢ from its note when re-scored at another reference pitch becomes a wrong note', () => {
+    // 1200·log2(466/440) = 99.4 ¢: every E4 at A4 = 440 is about a semitone below E4 at A4 = 466.
+    const hi = scoreMeasurement(measureTake(audioOf(syn.samples, 44100), expectedHolds(drill, 'Alto')), computeTargets(drill, { name: 'equal' }, 466), 'Alto', 10)
+    expect(hi.holds[0]!.reasonCode).toBe('wrong_note')
+    expect(hi.holds[0]!.heardNote).toBe('D#4')
+    expect(hi.summary.meanAbsCents).toBeNull()
+  })
+})
+
+describe('drift needs enough holds', () => {
+  it('a steady two-hold take reports no drift figure', () => {
+    const drill = { title: 'Two', key: 'C major', tempo: 60, parts: [{ name: 'Alto' }], chords: [{ beats: 3, notes: { Alto: 'E4' } }, { beats: 3, notes: { Alto: 'A4' } }] }
+    const syn = synthTakeWithTruth({
+      sampleRate: 44100, durationS: 7.4, timbre: 'voice-alto', seed: 3, snrDb: 35,
+      holds: [{ startS: 1.04, endS: 3.8, hz: 440 * Math.pow(2, -5 / 12) }, { startS: 4.04, endS: 6.8, hz: 440 * Math.pow(2, 1.6 / 1200) }],
+    })
+    const r = scoreMeasurement(measureTake(audioOf(syn.samples, 44100), expectedHolds(drill, 'Alto')), computeTargets(drill, { name: 'equal' }), 'Alto', 10)
+    expect(r.summary.holdsFound).toBe(2)
+    expect(r.summary.driftCentsPerMin).toBeNull()
+    expect(r.summary.driftUncertaintyCentsPerMin).toBeNull()
   })
 })
 

@@ -1,0 +1,165 @@
+// The sampled-instrument table of `npm run bench:analysis`: takes rendered with FluidSynth from
+// Debian's TimGM6mb soundfont (scripts/sampled-corpus.ts), truth measured with aubiopitch on
+// each voice rendered alone, and Praat's autocorrelation pitch (Debian's praat) given each
+// hold's steady window, side by side with the engine, which has to find the holds itself.
+import { execFileSync } from 'node:child_process'
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs'
+import { tmpdir } from 'node:os'
+import { join } from 'node:path'
+import { decodeAudio } from '../server/analysis/decode'
+import { fitDrift } from '../server/analysis/drift'
+import { measureTake } from '../server/analysis/measure'
+import type { ExpectedHold, Measurement } from '../server/analysis/types'
+import { buildSampledCorpus, missingTool } from '../scripts/sampled-corpus'
+import type { RenderedTake, TakeKind } from '../scripts/sampled-corpus'
+
+const cents = (a: number, b: number) => 1200 * Math.log2(a / b)
+const etHz = (midi: number) => 440 * Math.pow(2, (midi - 69) / 12)
+
+/** The drill's expected holds for the measured part of a rendered take. */
+export function expectedOf (take: RenderedTake): ExpectedHold[] {
+  const spec = take.spec
+  const part = spec.parts.find(p => p.name === spec.part)!
+  const spb = 60 / spec.tempo
+  let beat = 0
+  return spec.beats.map((b, index) => {
+    const startS = beat * spb
+    beat += b
+    const midi = part.notes[index] ?? null
+    return { index, startS, endS: beat * spb, midi, expectedHz: midi === null ? 0 : etHz(midi) }
+  })
+}
+
+/** Praat (To Pitch (ac), "very accurate") mean pitch in semitones over each window, as Hz. */
+function praatMeans (wav: string, windows: Array<{ a: number, b: number, hz: number }>, work: string): Array<number | null> {
+  const lines = [
+    `s = Read from file: "${wav}"`,
+    'm = Convert to mono',
+  ]
+  for (const w of windows) {
+    lines.push(
+      'selectObject: m',
+      `p = Extract part: ${w.a.toFixed(4)}, ${w.b.toFixed(4)}, "rectangular", 1, "no"`,
+      `pt = To Pitch (ac): 0, ${(w.hz / 1.6).toFixed(2)}, 15, "yes", 0.03, 0.45, 0.01, 0.35, 0.14, ${(w.hz * 1.6).toFixed(2)}`,
+      'v = Get mean: 0, 0, "semitones re 1 Hz"',
+      'appendInfoLine: fixed$(v, 6)',
+      'removeObject: p, pt',
+    )
+  }
+  const script = join(work, 'means.praat')
+  writeFileSync(script, `${lines.join('\n')}\n`)
+  const out = execFileSync('praat', ['--run', script], { encoding: 'utf8', stdio: ['ignore', 'pipe', 'ignore'] })
+  return out.trim().split('\n').map(l => (/^-?[0-9.]+$/.test(l.trim()) ? Math.pow(2, Number(l) / 12) : null))
+}
+
+interface HoldRow {
+  kind: TakeKind
+  take: string
+  found: boolean
+  err: number | null
+  praatErr: number | null
+  onsetErr: number | null
+  confidence: number
+  tied: boolean
+}
+
+function q (v: number[], p: number): number {
+  if (!v.length) return NaN
+  const a = [...v].sort((x, y) => x - y)
+  const pos = p * (a.length - 1)
+  const lo = Math.floor(pos)
+  return a[lo]! + (a[Math.ceil(pos)]! - a[lo]!) * (pos - lo)
+}
+const f = (v: number, d = 2) => (Number.isFinite(v) ? v.toFixed(d) : '—')
+
+export async function sampledTable (dir: string): Promise<string[]> {
+  const missing = missingTool()
+  if (missing) return [`Sampled-instrument table skipped: ${missing} is not installed.`]
+  try { execFileSync('praat', ['--version'], { stdio: 'ignore' }) } catch { return ['Sampled-instrument table skipped: praat (Debian package praat) is not installed.'] }
+  const corpus = buildSampledCorpus(dir)
+  const work = mkdtempSync(join(tmpdir(), 'driftline-praat-'))
+  const rows: HoldRow[] = []
+  const takeRows: Array<{ take: RenderedTake, m: Measurement, drift: number | null, driftSe: number | null, truthDrift: number | null }> = []
+  try {
+    for (const take of corpus.takes) {
+      const audio = await decodeAudio(new Uint8Array(readFileSync(take.file)))
+      const expected = expectedOf(take)
+      const m = measureTake(audio, expected, { trace: false })
+      const praat = praatMeans(take.file, take.holds.map(h => ({ a: h.steadyStartS, b: h.steadyEndS, hz: h.truthHz })), work)
+      take.holds.forEach((t, i) => {
+        const held = m.holds.find(h => h.index === t.index)!
+        const found = held.detectedHz !== null && held.reasonCode === null
+        rows.push({
+          kind: take.spec.kind, take: take.spec.id, found,
+          err: found ? cents(held.detectedHz!, t.truthHz) : null,
+          praatErr: praat[i] ? cents(praat[i]!, t.truthHz) : null,
+          onsetErr: found ? held.startS - t.onS : null,
+          confidence: held.confidence, tied: t.tied,
+        })
+      })
+      const pts = m.holds.filter(h => h.detectedHz !== null && h.reasonCode === null).map(h => ({
+        tMin: ((h.steadyStartS ?? h.startS) + (h.steadyEndS ?? h.endS)) / 2 / 60, cents: cents(h.detectedHz!, h.expectedHz), errorCents: h.centreErrorCents,
+      }))
+      const d = fitDrift(pts)
+      const truthFit = fitDrift(take.holds.map(h => ({ tMin: (h.steadyStartS + h.steadyEndS) / 2 / 60, cents: cents(h.truthHz, etHz(h.midi)), errorCents: null })))
+      takeRows.push({ take, m, drift: d.centsPerMin, driftSe: d.uncertaintyCentsPerMin, truthDrift: truthFit.centsPerMin })
+    }
+  } finally {
+    rmSync(work, { recursive: true, force: true })
+  }
+
+  const out: string[] = []
+  const groups: Array<[string, (r: HoldRow) => boolean, string, string]> = [
+    ['instruments (one part)', r => r.kind === 'instrument', '≤ 0.3', '≤ 1.0'],
+    ['voices (one singer)', r => r.kind === 'voice', '≤ 0.5', '≤ 1.5'],
+    ['sections (3–12 voices)', r => r.kind === 'section', '≤ 0.5', '≤ 1.5'],
+    ['whole chords (quartet, one part)', r => r.kind === 'chord', '—', '—'],
+  ]
+  const table: string[][] = [['group (holds)', 'found', 'onset ≤ 0.1 s', 'median / p95 |err| ¢ (target)', 'Driftline', 'Praat (given windows)']]
+  for (const [name, sel, tMed, tP95] of groups) {
+    const g = rows.filter(sel)
+    if (!g.length) continue
+    const found = g.filter(r => r.found)
+    const e = found.map(r => Math.abs(r.err!))
+    const pe = g.filter(r => r.praatErr !== null).map(r => Math.abs(r.praatErr!))
+    const on = found.filter(r => Math.abs(r.onsetErr!) <= 0.1).length
+    table.push([
+      `${name} (${g.length})`,
+      `${found.length}/${g.length} (${(100 * found.length / g.length).toFixed(1)} %)`,
+      `${on}/${found.length}`,
+      `${tMed} / ${tP95}`,
+      `${f(q(e, 0.5), 3)} / ${f(q(e, 0.95), 3)}`,
+      `${f(q(pe, 0.5), 3)} / ${f(q(pe, 0.95), 3)} (${pe.length})`,
+    ])
+  }
+  const widths = table[0]!.map((_, c) => Math.max(...table.map(r => [...r[c]!].length)))
+  for (const [i, r] of table.entries()) {
+    out.push(r.map((cell, c) => cell.padEnd(widths[c]!)).join(' | ').trimEnd())
+    if (i === 0) out.push(widths.map(w => '-'.repeat(w)).join('-|-'))
+  }
+  const hi = rows.filter(r => r.found && r.confidence >= 0.8)
+  const hiOk = hi.filter(r => Math.abs(r.err!) <= 1).length
+  out.push('')
+  out.push(`Confidence calibration: holds at confidence ≥ 0.8 within 1 ¢ of the truth: ${hiOk}/${hi.length} (${f(100 * hiOk / Math.max(1, hi.length), 1)} %; target ≥ 95 %).`)
+  for (const band of [[0, 0.5], [0.5, 0.8], [0.8, 1.01]] as const) {
+    const b = rows.filter(r => r.found && r.confidence >= band[0] && r.confidence < band[1])
+    out.push(`  confidence ${band[0]}–${Math.min(1, band[1])}: ${b.length} holds, within 1 ¢: ${b.filter(r => Math.abs(r.err!) <= 1).length}`)
+  }
+  const tied = rows.filter(r => r.tied)
+  if (tied.length) out.push(`Tied repeats (no re-articulation): ${tied.filter(r => r.found).length}/${tied.length} found, median |err| ${f(q(tied.filter(r => r.found).map(r => Math.abs(r.err!)), 0.5), 3)} ¢.`)
+  out.push('')
+  out.push('Time map and drift per take (rendered exactly in tempo; drift: Driftline ± SE vs the fit of the truths, asked value in brackets):')
+  for (const t of takeRows) {
+    const s = t.take.spec
+    const drift = s.driftCentsPerMin !== 0
+      ? `, drift ${t.drift === null ? 'not enough holds' : f(t.drift)} ± ${f(t.driftSe ?? NaN)} vs ${f(t.truthDrift ?? NaN)} (${s.driftCentsPerMin}) ¢/min` +
+        (t.drift !== null && t.truthDrift ? `, ${f(100 * Math.abs(t.drift - t.truthDrift) / Math.abs(t.truthDrift), 1)} % off` : '')
+      : ''
+    const worst = rows.filter(r => r.take === s.id && r.found).reduce((w, r) => Math.max(w, Math.abs(r.err!)), 0)
+    out.push(`  ${s.id.padEnd(13)} tempo ${f(100 * (t.m.timeScale - 1), 2).padStart(6)} %, offset error ${f(t.m.offsetS - s.leadInS, 3).padStart(6)} s, worst |err| ${f(worst, 2)} ¢${drift}`)
+  }
+  out.push(`Bend check (FluidSynth, asked → rendered ¢, aubiopitch): ${corpus.bendCheck.map(b => `${b.asked} → ${b.measured}`).join(', ')}`)
+  const cal = Object.values(corpus.calibration)
+  out.push(`Plain-note calibration (aubiopitch, ${cal.length} program/note pairs): ${f(Math.min(...cal))} to ${f(Math.max(...cal))} ¢ from equal temperament.`)
+  return out
+}

@@ -1,0 +1,118 @@
+// Timing of the holds found: where each one starts and ends in the take, whether its start is an
+// onset the take shows or only the chord boundary (a tie or a legato repeat), and the take's
+// time map fitted robustly to the onsets.
+import type { HoldTiming } from '../../shared/types/take'
+import type { HoldPlacement } from './align'
+import type { CoarseTrack } from './pitch'
+import type { ExpectedHold } from './types'
+
+export type { HoldTiming }
+
+export interface TimeMap { offsetS: number, timeScale: number }
+
+interface Found { onsetS: number | null, releaseS: number | null, articulated: boolean }
+
+// Within 0.6 semitone of the note heard (or an octave off: the coarse detector's slips).
+const near = (hz: number, refHz: number) => {
+  if (!(hz > 0)) return false
+  const d = 12 * Math.log2(hz / refHz)
+  const oct = Math.round(d / 12)
+  return Math.abs(oct) <= 1 && Math.abs(d - 12 * oct) <= 0.6
+}
+
+/**
+ * Onset and release of every placed hold from its coarse track: the first and last frames near
+ * the note heard there (the median pitch of the placed frames, which for a wrong note is not
+ * the expected one) at ≥ 30 % of the hold's median level, searched from
+ * 0.15 s before to 0.3 s after the placed start (and to 0.25 s after the placed end). A hold that
+ * directly follows the same note with no boundary (pitch change, energy dip) between them was
+ * not re-articulated: its start is only the chord boundary.
+ */
+export function findOnsets (tracks: CoarseTrack[], placements: HoldPlacement[], holds: ExpectedHold[], bounds: Uint8Array[]): Found[] {
+  return placements.map((p, i) => {
+    if (!p.found) return { onsetS: null, releaseS: null, articulated: false }
+    const tr = tracks[i]!
+    const h = holds[i]!
+    const F = tr.times.length
+    const hop = tr.hopS
+    const heard: number[] = []
+    for (let j = p.frameStart; j < p.frameEnd && j < F; j++) if (tr.voiced[j]) heard.push(tr.hz[j]!)
+    if (heard.length < 3) return { onsetS: null, releaseS: null, articulated: false }
+    heard.sort((x, y) => x - y)
+    const refHz = heard[heard.length >> 1]!
+    const lv: number[] = []
+    for (let j = p.frameStart; j < p.frameEnd && j < F; j++) if (tr.voiced[j] && near(tr.hz[j]!, refHz)) lv.push(tr.energy[j]!)
+    if (lv.length < 3) return { onsetS: null, releaseS: null, articulated: false }
+    lv.sort((a, b) => a - b)
+    const thr = 0.3 * lv[lv.length >> 1]!
+    const ok = (j: number) => tr.voiced[j] === 1 && near(tr.hz[j]!, refHz) && tr.energy[j]! >= thr
+    let on = -1
+    const a = Math.max(0, p.frameStart - Math.round(0.15 / hop))
+    const b = Math.min(F - 1, p.frameStart + Math.round(0.3 / hop))
+    for (let j = a; j <= b; j++) if (ok(j)) { on = j; break }
+    let off = -1
+    const c = Math.min(F - 1, p.frameEnd - 1 + Math.round(0.25 / hop))
+    for (let j = c; j >= Math.max(0, p.frameEnd - 1 - Math.round(0.3 / hop)); j--) if (ok(j)) { off = j; break }
+    // Re-articulated? Only a question when the previous hold is the same note, placed right before.
+    const prev = i > 0 ? placements[i - 1]! : null
+    let articulated = true
+    if (prev && prev.found && holds[i - 1]!.midi === h.midi && (p.frameStart - prev.frameEnd) * hop < 0.1) {
+      const bf = bounds[i]!
+      articulated = false
+      const w = Math.round(0.12 / hop)
+      for (let j = Math.max(0, p.frameStart - w); j <= Math.min(F - 1, p.frameStart + w); j++) if (bf[j]) { articulated = true; break }
+      // A gap of unvoiced frames between them is a re-articulation too (a breath, a stop).
+      if (!articulated) {
+        for (let j = Math.max(0, prev.frameEnd - w); j <= Math.min(F - 1, p.frameStart + w); j++) if (!tr.voiced[j] || tr.energy[j]! < thr) { articulated = true; break }
+      }
+    }
+    return {
+      onsetS: on >= 0 && articulated ? tr.times[on]! - hop / 2 : null,
+      releaseS: off >= 0 ? tr.times[off]! + hop / 2 : null,
+      articulated,
+    }
+  })
+}
+
+/**
+ * The take's map t_take = offsetS + timeScale·t_drill from the onsets found (chord start on the
+ * drill against onset in the take): Theil–Sen slope (median of the pairwise slopes of onsets at
+ * least 0.5 s apart on the drill) and the median intercept, so a missing, extra or late chord
+ * does not tip it. Null with fewer than three onsets or a slope outside 0.6–1.6.
+ */
+export function fitTimeMap (pairs: Array<{ drillS: number, takeS: number }>): TimeMap | null {
+  if (pairs.length < 3) return null
+  const slopes: number[] = []
+  for (let i = 0; i < pairs.length; i++) {
+    for (let j = i + 1; j < pairs.length; j++) {
+      const dx = pairs[j]!.drillS - pairs[i]!.drillS
+      if (Math.abs(dx) >= 0.5) slopes.push((pairs[j]!.takeS - pairs[i]!.takeS) / dx)
+    }
+  }
+  if (slopes.length < 2) return null
+  const s = median(slopes)
+  if (!(s >= 0.6 && s <= 1.6)) return null
+  const o = median(pairs.map(p => p.takeS - s * p.drillS))
+  return { offsetS: o, timeScale: s }
+}
+
+/** Timing of each hold against the map (onset late or early against its beat). */
+export function holdTiming (found: Found, hold: ExpectedHold, map: TimeMap): HoldTiming {
+  const beat = map.offsetS + map.timeScale * hold.startS
+  return {
+    onsetS: found.onsetS === null ? null : round3(found.onsetS),
+    releaseS: found.releaseS === null ? null : round3(found.releaseS),
+    start: found.onsetS === null ? 'chord_boundary' : 'onset',
+    fromBeatS: found.onsetS === null ? null : round3(found.onsetS - beat),
+  }
+}
+
+function median (v: number[]): number {
+  const s = [...v].sort((a, b) => a - b)
+  const m = s.length >> 1
+  return s.length % 2 ? s[m]! : (s[m - 1]! + s[m]!) / 2
+}
+
+function round3 (v: number): number {
+  return Math.round(v * 1000) / 1000
+}
