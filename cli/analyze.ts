@@ -4,6 +4,7 @@ import { TuningError } from '../shared/tuning/index'
 import { analyzeTake } from '../server/analysis/index'
 import type { TakeReport } from '../server/analysis/index'
 import { isAnalysisError } from '../server/analysis/errors'
+import { DRIFT_TOO_FEW, holdKind, wrongNoteText } from '../shared/report-wording'
 import type { Io } from './common'
 import { checkSystemFlags, loadDrill, pad, parseFlags, parseFraction, parseNumber, readInput, signed, SYSTEM_HELP, SYSTEM_OPTIONS, systemFromFlags, TUNING_HELP, UsageError } from './common'
 
@@ -46,14 +47,20 @@ export function formatReport (drill: DrillDocument, report: TakeReport): string 
   lines.push('')
   const rows = [['Chord', 'Note', 'Member', 'Target Hz', 'Heard Hz', 'From target', 'From equal', 'In tol.', 'Spread', 'Slope', 'Vibrato', 'Conf.']]
   for (const h of report.holds) {
-    if (h.detectedHz === null) {
+    const kind = holdKind(h)
+    if (kind === 'wrong') {
+      const heard = h.detectedHz === null ? '—' : h.detectedHz.toFixed(3)
+      rows.push([String(h.index + 1), h.note, h.member ?? '—', h.targetHz.toFixed(3), heard, 'wrong note', '—', '—', '—', '—', '—', h.confidence.toFixed(2)])
+      continue
+    }
+    if (kind === 'missing' || h.detectedHz === null) {
       rows.push([String(h.index + 1), h.note, h.member ?? '—', h.targetHz.toFixed(3), '—', '—', '—', '—', '—', '—', '—', '0'])
       continue
     }
     rows.push([
       String(h.index + 1), h.note, h.member ?? '—', h.targetHz.toFixed(3), h.detectedHz.toFixed(3),
       `${signed(h.centsFromTarget!, 2)} ¢`, `${signed(h.centsFromEqual!, 2)} ¢`, h.withinTolerance ? 'yes' : 'no',
-      `${h.spreadCents!.toFixed(1)} ¢`, `${signed(h.slopeCentsPerS!, 1)} ¢/s`,
+      h.spreadCents === null ? '—' : `${h.spreadCents.toFixed(1)} ¢`, h.slopeCentsPerS === null ? '—' : `${signed(h.slopeCentsPerS, 1)} ¢/s`,
       h.vibrato ? `±${h.vibrato.extentCents.toFixed(0)} ¢ ${h.vibrato.rateHz.toFixed(1)} Hz` : '—', h.confidence.toFixed(2),
     ])
   }
@@ -63,13 +70,18 @@ export function formatReport (drill: DrillDocument, report: TakeReport): string 
   const parts = [`${s.holdsFound} of ${s.holdsExpected} holds found`]
   if (s.meanAbsCents !== null) parts.push(`mean |deviation| ${s.meanAbsCents.toFixed(2)} ¢`)
   if (s.withinToleranceShare !== null) parts.push(`${Math.round(100 * s.withinToleranceShare)} % within ±${report.tolerance} ¢`)
-  if (s.driftCentsPerMin !== null) parts.push(`drift ${signed(s.driftCentsPerMin, 2)} ¢/min`)
+  parts.push(s.driftCentsPerMin === null ? `drift: ${DRIFT_TOO_FEW}` : `drift ${signed(s.driftCentsPerMin, 2)} ¢/min`)
   lines.push(parts.join(' · '))
   const members = Object.keys(report.memberBias)
   if (members.length) {
     lines.push(`Bias by chord member: ${members.map(m => `${m} ${signed(report.memberBias[m]!, 2)} ¢ (${report.memberCounts[m]})`).join(' · ')}`)
   }
-  const missing = report.holds.filter(h => h.detectedHz === null)
+  const wrong = report.holds.filter(h => holdKind(h) === 'wrong')
+  if (wrong.length) {
+    lines.push('Wrong notes (left out of every figure above):')
+    for (const h of wrong) lines.push(`  chord ${h.index + 1}: ${wrongNoteText(h)}`)
+  }
+  const missing = report.holds.filter(h => holdKind(h) === 'missing')
   if (missing.length) {
     lines.push('Not measured:')
     for (const h of missing) lines.push(`  chord ${h.index + 1} (${h.note}): ${h.reason ?? 'no pitch found'}`)
