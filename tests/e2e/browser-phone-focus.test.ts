@@ -105,6 +105,13 @@ describe('on a 390-px phone', () => {
       // A measured hold shows "From target" with a signed figure; other holds say why not.
       expect(await score.textContent()).toMatch(/From target\s*[+\u2212]?\d+\.\d ¢|Wrong note: heard|no pitch found/)
     }
+    // On a tablet the full table shows; it scrolls inside its own box and the page stays as wide
+    // as the viewport (its screen-reader-only text stays inside the box too).
+    await page.setViewportSize({ width: 800, height: 1000 })
+    await page.getByTestId('hold-table').waitFor()
+    const wide = await overflow(page)
+    expect(wide.escaped).toEqual([])
+    expect(wide.scrollWidth).toBe(800)
     await page.context().close()
   })
 
