@@ -2,7 +2,7 @@
 // the command line: a wrong note names the note heard and how far it is from the expected one
 // (never a tuning deviation), and a drift without enough evidence says so instead of a number.
 // Pure TypeScript (no Vue, no Nitro) so pages, components and the CLI share one wording.
-import { MINUS } from './deviation'
+import { formatNumber } from './deviation'
 
 /** A hold further than this from its expected note's equal-tempered pitch is a wrong note. */
 export const WRONG_NOTE_CENTS = 50
@@ -74,9 +74,7 @@ export function wrongNote(h: WordedHold): WrongNote | null {
 
 /** "+300 ¢" / "−1200 ¢": whole cents with a true minus sign. */
 export function formatWholeCents(c: number): string {
-  const r = Math.round(c)
-  if (r === 0) return '0 ¢'
-  return `${r < 0 ? MINUS : '+'}${Math.abs(r)} ¢`
+  return formatNumber(c, 0, '¢', { signed: true })
 }
 
 /**
@@ -109,9 +107,7 @@ export const DRIFT_TOO_FEW = 'not enough holds'
 /** "+1.2 ¢/min", or "not enough holds" when the report gives no drift (too few holds for a slope). */
 export function driftText(driftCentsPerMin: number | null | undefined): string {
   const d = finite(driftCentsPerMin)
-  if (d === null) return DRIFT_TOO_FEW
-  const v = Math.abs(d) < 0.05 ? 0 : d
-  return `${v < 0 ? MINUS : v > 0 ? '+' : ''}${Math.abs(v).toFixed(1)} ¢/min`
+  return d === null ? DRIFT_TOO_FEW : formatNumber(d, 1, '¢/min', { signed: true })
 }
 
 function finite(v: number | null | undefined): number | null {

@@ -7,7 +7,7 @@ import TakeHoldTable from '~/components/takes/TakeHoldTable.vue'
 import TakeSummary from '~/components/takes/TakeSummary.vue'
 import TakeHistory from '~/components/takes/TakeHistory.vue'
 import HomeRecent from '~/components/home/HomeRecent.vue'
-import type { TakeHold } from '~/composables/useTake'
+import type { ReportHold as TakeHold } from '#shared/types/take'
 
 // Equal-tempered frequencies at A4 = 440 Hz (standard table): C4 261.626 Hz, E♭4 311.127 Hz,
 // A3 220.000 Hz. E♭4 is three semitones, 300 ¢, above C4 (100 ¢ per semitone, common practice).
@@ -77,6 +77,8 @@ describe('drift and times in the take history and on home', () => {
           { id: 3, createdAt: '2026-03-08T18:00:00Z', status: 'queued', meanAbsCents: null, withinToleranceShare: null, driftCentsPerMin: null },
         ],
         tolerance: 10,
+        playerName: 'Ada Example',
+        own: true,
       },
     })
     const drift = w.findAll('[data-col="drift"]').map(c => c.text())
@@ -89,6 +91,8 @@ describe('drift and times in the take history and on home', () => {
         current: { id: 9, createdAt: '2026-03-10T18:00:41Z', meanAbsCents: 6, withinToleranceShare: 0.8 },
         earlier: [{ id: 8, createdAt: '2026-03-10T18:00:07Z', meanAbsCents: 7, withinToleranceShare: 0.6 }],
         tolerance: 10,
+        playerName: 'Ada Example',
+        own: true,
       },
     })
     const labels = w.findAll('tbody th').map(th => th.text())
@@ -104,6 +108,8 @@ describe('drift and times in the take history and on home', () => {
         current: { id: 9, createdAt: '2026-03-10T18:00:07.900Z', meanAbsCents: 6, withinToleranceShare: 0.8 },
         earlier: [{ id: 8, createdAt: '2026-03-10T18:00:07.100Z', meanAbsCents: 7, withinToleranceShare: 0.6 }],
         tolerance: 10,
+        playerName: 'Ada Example',
+        own: true,
       },
     })
     const labels = w.findAll('tbody th').map(th => th.text())
@@ -112,7 +118,7 @@ describe('drift and times in the take history and on home', () => {
   })
 
   it('home lists the drift of recent takes, or "not enough holds"', async () => {
-    const base = { drillTitle: 'Held fifths', part: 'Alto', status: 'analysed' as const, createdAt: '2026-03-10T18:00:00Z', meanAbsCents: 5, withinToleranceShare: 0.9 }
+    const base = { drillTitle: 'Held fifths', part: 'Alto', status: 'analysed' as const, createdAt: '2026-03-10T18:00:00Z', meanAbsCents: 5, withinToleranceShare: 0.9, tolerance: 10 }
     const w = await mountSuspended(HomeRecent, {
       props: { items: [{ ...base, takeId: 1, driftCentsPerMin: null }, { ...base, takeId: 2, driftCentsPerMin: 1.25 }] },
     })
