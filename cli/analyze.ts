@@ -4,6 +4,7 @@ import { TuningError } from '../shared/tuning/index'
 import { analyzeTake } from '../server/analysis/index'
 import type { TakeReport } from '../server/analysis/index'
 import { isAnalysisError } from '../server/analysis/errors'
+import { DRIFT_TOO_FEW, holdKind, wrongNoteText } from '../shared/report-wording'
 import type { Io } from './common'
 import { checkSystemFlags, loadDrill, pad, parseFlags, parseFraction, parseNumber, readInput, signed, SYSTEM_HELP, SYSTEM_OPTIONS, systemFromFlags, TUNING_HELP, UsageError } from './common'
 
@@ -46,7 +47,13 @@ export function formatReport (drill: DrillDocument, report: TakeReport): string 
   lines.push('')
   const rows = [['Chord', 'Note', 'Member', 'Target Hz', 'Heard Hz', 'From target', 'From equal', 'In tol.', 'Spread', 'Slope', 'Vibrato', 'Conf.']]
   for (const h of report.holds) {
-    if (h.detectedHz === null) {
+    const kind = holdKind(h)
+    if (kind === 'wrong') {
+      const heard = h.detectedHz === null ? '—' : h.detectedHz.toFixed(3)
+      rows.push([String(h.index + 1), h.note, h.member ?? '—', h.targetHz.toFixed(3), heard, 'wrong note', '—', '—', '—', '—', '—', h.confidence.toFixed(2)])
+      continue
+    }
+    if (kind === 'missing' || h.detectedHz === null) {
       rows.push([String(h.index + 1), h.note, h.member ?? '—', h.targetHz.toFixed(3), '—', '—', '—', '—', '—', '—', '—', '0'])
       continue
     }
@@ -59,7 +66,7 @@ export function formatReport (drill: DrillDocument, report: TakeReport): string 
     rows.push([
       String(h.index + 1), h.note, h.member ?? '—', h.targetHz.toFixed(3), h.detectedHz.toFixed(3),
       `${signed(h.centsFromTarget!, 2)} ¢`, `${signed(h.centsFromEqual!, 2)} ¢`, h.withinTolerance ? 'yes' : 'no',
-      `${h.spreadCents!.toFixed(1)} ¢`, `${signed(h.slopeCentsPerS!, 1)} ¢/s`,
+      h.spreadCents === null ? '—' : `${h.spreadCents.toFixed(1)} ¢`, h.slopeCentsPerS === null ? '—' : `${signed(h.slopeCentsPerS, 1)} ¢/s`,
       h.vibrato ? `±${h.vibrato.extentCents.toFixed(0)} ¢ ${h.vibrato.rateHz.toFixed(1)} Hz` : '—', h.confidence.toFixed(2),
     ])
   }
@@ -73,15 +80,19 @@ export function formatReport (drill: DrillDocument, report: TakeReport): string 
     const u = s.driftUncertaintyCentsPerMin
     parts.push(`drift ${signed(s.driftCentsPerMin, 2)}${u !== null && u !== undefined ? ` ± ${u.toFixed(2)}` : ''} ¢/min`)
   } else if (s.holdsFound > 0) {
-    parts.push('drift: not enough holds')
+    parts.push(`drift: ${DRIFT_TOO_FEW}`)
   }
-  if (s.wrongNotes) parts.push(`${s.wrongNotes} wrong note${s.wrongNotes === 1 ? '' : 's'}`)
   lines.push(parts.join(' · '))
   const members = Object.keys(report.memberBias)
   if (members.length) {
     lines.push(`Bias by chord member: ${members.map(m => `${m} ${signed(report.memberBias[m]!, 2)} ¢ (${report.memberCounts[m]})`).join(' · ')}`)
   }
-  const missing = report.holds.filter(h => h.centsFromTarget === null)
+  const wrong = report.holds.filter(h => holdKind(h) === 'wrong')
+  if (wrong.length) {
+    lines.push('Wrong notes (left out of every figure above):')
+    for (const h of wrong) lines.push(`  chord ${h.index + 1}: ${wrongNoteText(h)}`)
+  }
+  const missing = report.holds.filter(h => holdKind(h) === 'missing')
   if (missing.length) {
     lines.push('Not scored:')
     for (const h of missing) lines.push(`  chord ${h.index + 1} (${h.note}): ${h.reason ?? 'no pitch found'}`)

@@ -68,7 +68,7 @@ export async function loadDrill(path: string, key: string | undefined): Promise<
   const bytes = await readInput(path, 'drill file')
   const ext = extname(path).toLowerCase()
   const isMidi = ext === '.mid' || ext === '.midi' || (bytes.length >= 4 && String.fromCharCode(...bytes.subarray(0, 4)) === 'MThd')
-  if (isMidi) return midiToDrill(bytes, key ? { key } : {})
+  if (isMidi) return midiToDrill(bytes, { fileName: path, ...(key ? { key } : {}) })
   let text: string
   try {
     text = new TextDecoder('utf-8', { fatal: true }).decode(bytes)

@@ -22,10 +22,11 @@ export function formatRelative(at: number, now: number): string {
   return rtf.format(Math.round(diff / 60_000) || Math.sign(diff), 'minute')
 }
 
-/** "Fri 12 Dec 2025, 18:00" in the browser's zone, or UTC (marked) before hydration. */
-export function formatAbsolute(at: number, local: boolean): string {
+/** "Fri 12 Dec 2025, 18:00" (with `seconds`, "18:00:07") in the browser's zone, or UTC (marked) before hydration. */
+export function formatAbsolute(at: number, local: boolean, seconds = false): string {
   const text = new Intl.DateTimeFormat('en-GB', {
     weekday: 'short', day: 'numeric', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit',
+    ...(seconds ? { second: '2-digit' } : {}),
     timeZone: local ? undefined : 'UTC',
   }).format(at)
   return local ? text : `${text} UTC`

@@ -167,10 +167,10 @@ export interface DrillFileProblem { refused: string, message: string, details: R
  * A drill document from an uploaded file: a Standard MIDI File (starts with "MThd") or a drill
  * JSON document; `title` replaces the document's own.
  */
-export function drillFromFile (bytes: Uint8Array, title?: string): { document: DrillDocument } | DrillFileProblem {
+export function drillFromFile (bytes: Uint8Array, title?: string, fileName?: string | null): { document: DrillDocument } | DrillFileProblem {
   const isMidi = bytes.length >= 4 && bytes[0] === 0x4d && bytes[1] === 0x54 && bytes[2] === 0x68 && bytes[3] === 0x64
   try {
-    if (isMidi) return { document: midiToDrill(bytes, title ? { title } : {}) }
+    if (isMidi) return { document: midiToDrill(bytes, { ...(title ? { title } : {}), ...(fileName ? { fileName } : {}) }) }
     const text = new TextDecoder('utf-8', { fatal: false }).decode(bytes).replace(/^\uFEFF/, '').trim()
     if (!text.startsWith('{')) return { refused: 'not_a_drill', message: 'Not a drill file', details: { expected: 'drill JSON or Standard MIDI File' } }
     let json: Record<string, unknown>

@@ -86,7 +86,8 @@ export async function loadHome (db: Knex, user: SessionUser, now = new Date()): 
     .where(q => q.where('me.role', 'director').orWhere(q2 => q2.whereNotNull('me.section_id').whereRaw('pm.section_id = me.section_id')))
     .whereNotExists(db('reviews as r').whereRaw('r.take_id = t.id').select(db.raw('1')))
     .select('t.id', 'e.name as ensemble_name', 'u.name as player_name', 'ps.name as section_name', 'd.title as drill_title', 't.part', 't.status', 't.created_at', 'an.mean_abs_cents', db.raw('coalesce(an.tolerance, d.tolerance) as tolerance'))
-    .orderBy([{ column: 't.created_at', order: 'desc' }, { column: 't.id', order: 'desc' }])
+    // Oldest first: the take that has waited longest is reviewed first.
+    .orderBy([{ column: 't.created_at', order: 'asc' }, { column: 't.id', order: 'asc' }])
     .limit(LIST_LIMIT)
 
   const recent = await db('takes as t')
@@ -95,7 +96,7 @@ export async function loadHome (db: Knex, user: SessionUser, now = new Date()): 
       this.on('an.take_id', '=', 't.id').andOn('an.is_current', '=', db.raw('1'))
     })
     .where('t.user_id', uid).whereNull('t.withdrawn_at')
-    .select('t.id', 'd.title as drill_title', 't.part', 't.status', 't.created_at', 'an.mean_abs_cents', 'an.within_tolerance_share', db.raw('coalesce(an.tolerance, d.tolerance) as tolerance'))
+    .select('t.id', 'd.title as drill_title', 't.part', 't.status', 't.created_at', 'an.mean_abs_cents', 'an.within_tolerance_share', 'an.drift_cents_per_min', db.raw('coalesce(an.tolerance, d.tolerance) as tolerance'))
     .orderBy([{ column: 't.created_at', order: 'desc' }, { column: 't.id', order: 'desc' }])
     .limit(10)
 
@@ -123,7 +124,7 @@ export async function loadHome (db: Knex, user: SessionUser, now = new Date()): 
     })),
     recent: recent.map((r: any) => ({
       takeId: r.id, drillTitle: r.drill_title, part: r.part, status: r.status, createdAt: r.created_at,
-      meanAbsCents: num(r.mean_abs_cents), withinToleranceShare: num(r.within_tolerance_share), tolerance: Number(r.tolerance),
+      meanAbsCents: num(r.mean_abs_cents), withinToleranceShare: num(r.within_tolerance_share), driftCentsPerMin: num(r.drift_cents_per_min), tolerance: Number(r.tolerance),
     })),
     ensembleSummary: summary.map((r: any) => ({
       ensembleId: r.id, ensembleName: r.name, takesAnalysed: Number(r.analysed), meanAbsCents: num(r.mean_abs), withinToleranceShare: num(r.within), periodDays: SUMMARY_DAYS, tolerance: num(r.tolerance),

@@ -91,7 +91,7 @@ export async function takeDetail (db: Knex, a: TakeAccess): Promise<TakeDetail |
     .where(q => q.where('t.created_at', '<', t.createdAt).orWhere(q2 => q2.where('t.created_at', '=', t.createdAt).andWhere('t.id', '<', t.id)))
     .modify((q) => { if (!a.isOwner && !a.isDirector) q.whereNull('t.withdrawn_at') })
     .orderBy([{ column: 't.created_at', order: 'desc' }, { column: 't.id', order: 'desc' }]).limit(20)
-    .select('t.id', 't.created_at', 'an.mean_abs_cents', 'an.within_tolerance_share')
+    .select('t.id', 't.created_at', 't.status', 'an.mean_abs_cents', 'an.within_tolerance_share', 'an.drift_cents_per_min')
   const report = analysis?.report ? JSON.parse(analysis.report) as TakeReport : null
   return {
     id: t.id,
@@ -112,7 +112,7 @@ export async function takeDetail (db: Knex, a: TakeAccess): Promise<TakeDetail |
     mime: t.mime ?? 'application/octet-stream',
     bytes: t.bytes,
     originalName: t.originalName,
-    earlier: earlier.map((r: Record<string, any>): EarlierTake => ({ id: r.id, createdAt: r.created_at, meanAbsCents: num(r.mean_abs_cents), withinToleranceShare: num(r.within_tolerance_share) })),
+    earlier: earlier.map((r: Record<string, any>): EarlierTake => ({ id: r.id, createdAt: r.created_at, status: r.status, meanAbsCents: num(r.mean_abs_cents), withinToleranceShare: num(r.within_tolerance_share), driftCentsPerMin: num(r.drift_cents_per_min) })),
   }
 }
 

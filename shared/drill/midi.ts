@@ -10,7 +10,10 @@ import { DrillDocument as DrillSchema } from './schema'
 const { Midi } = pkg
 
 export interface MidiImportOptions {
+  /** The drill's title as the person typed it; wins over everything in the file. */
   title?: string
+  /** The uploaded file's name ("Evening hymn.mid"): the title when none is typed. */
+  fileName?: string
   /** Key as "Eb major"; defaults to the file's first key signature, else C major. */
   key?: string
   a4?: number
@@ -54,6 +57,31 @@ function chromaOf(pc: string): number {
 }
 
 interface PartNote { midi: number, start: number, end: number }
+
+/** A file name without folders and its MIDI extension, underscores read as spaces. */
+export function titleFromFileName(name: string | null | undefined): string {
+  const base = String(name ?? '').split(/[\\/]/).pop() ?? ''
+  return base.replace(/\.(midi?|smf|kar)$/i, '').replace(/_+/g, ' ').replace(/\s+/g, ' ').trim()
+}
+
+/**
+ * The drill's title: the typed title, else the file's name, else the file's sequence name (the
+ * name of its first track when that track is not one of the parts: a track named "Tenor" names a
+ * part, not the piece), else a plain default.
+ */
+function importTitle(opts: MidiImportOptions, sequenceName: string | undefined, partNames: string[]): string {
+  const sequence = (sequenceName ?? '').trim()
+  const candidates = [
+    opts.title ?? '',
+    titleFromFileName(opts.fileName),
+    partNames.includes(sequence) ? '' : sequence,
+  ]
+  for (const c of candidates) {
+    const t = c.trim().slice(0, 120).trim()
+    if (t) return t
+  }
+  return 'Imported from MIDI'
+}
 
 /**
  * Builds a drill from a Standard MIDI File: one part per track with notes (named after the track),
@@ -162,7 +190,7 @@ export function midiToDrill(bytes: Uint8Array, opts: MidiImportOptions = {}): Dr
   }
 
   const input: DrillInput = {
-    title: (opts.title ?? midi.header.name ?? '').trim().slice(0, 120) || 'Imported from MIDI',
+    title: importTitle(opts, midi.header.name, parts.map(p => p.name)),
     key,
     tempo,
     ...(opts.a4 !== undefined ? { a4: opts.a4 } : {}),

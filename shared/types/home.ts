@@ -52,6 +52,8 @@ export interface HomeRecent {
   createdAt: string
   meanAbsCents: number | null
   withinToleranceShare: number | null
+  /** Drift over the take, cents per minute; null until analysed, or when too few holds give a slope. */
+  driftCentsPerMin: number | null
   /** ± cents the take was scored at (its analysis, else its drill). */
   tolerance: number
 }

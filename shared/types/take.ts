@@ -109,7 +109,16 @@ export interface TakeReport {
 }
 
 /** An earlier take of the same player, drill and part (the comparison table). */
-export interface EarlierTake { id: number, createdAt: string, meanAbsCents: number | null, withinToleranceShare: number | null }
+export interface EarlierTake {
+  id: number
+  createdAt: string
+  /** Analysis state; the figures are null until it is 'analysed'. */
+  status?: TakeStatusName
+  meanAbsCents: number | null
+  withinToleranceShare: number | null
+  /** Null for an analysed take means too few holds for a meaningful slope. */
+  driftCentsPerMin?: number | null
+}
 
 /** GET /api/takes/:id */
 export interface TakeDetail extends TakeLiveState {

@@ -155,6 +155,9 @@ describe('signing in through the browser', () => {
     await signIn(page, director.email, demoPassword())
     await page.waitForURL(`${app.url}/`)
     await page.getByTestId('home-greeting').waitFor()
+    // A fresh load of the page: the skip link is the first stop of the tab order.
+    await page.goto(`${app.url}/`)
+    await page.getByTestId('home-greeting').waitFor()
     await page.keyboard.press('Tab')
     const focused = page.locator(':focus')
     expect(await focused.textContent()).toBe('Skip to content')

@@ -74,9 +74,14 @@ describe('TakeHoldTable', () => {
 
   it('offers a listen button per hold and emits its index', async () => {
     const w = await mountSuspended(TakeHoldTable, { props: { holds: [third, flatRoot], tolerance: 10, playable: true } })
-    const buttons = w.findAll('button')
+    // One button per hold in the table (wide screens) and one per card (phones).
+    const buttons = w.findAll('[data-testid="hold-table"] button')
     expect(buttons).toHaveLength(2)
     await buttons[1]!.trigger('click')
     expect(w.emitted('play-hold')).toEqual([[1]])
+    const cardButtons = w.findAll('[data-testid="hold-cards"] button')
+    expect(cardButtons).toHaveLength(2)
+    await cardButtons[0]!.trigger('click')
+    expect(w.emitted('play-hold')).toEqual([[1], [0]])
   })
 })

@@ -35,7 +35,8 @@ describe('TakeSummary', () => {
     })
     expect(w.text()).not.toContain('NaN')
     expect(w.find('[data-testid="summary-share"]').text()).toBe('—')
-    expect(w.find('[data-testid="summary-drift"]').text()).toBe('—')
+    // No drift figure without holds: the words say why instead of a dash or a number.
+    expect(w.find('[data-testid="summary-drift"]').text()).toContain('not enough holds')
   })
 })
 

@@ -36,6 +36,51 @@ function fixKeySignature(bytes: Uint8Array, key?: string): Uint8Array {
   return bytes
 }
 
+/**
+ * A format 1 Standard MIDI File written byte by byte (Standard MIDI Files 1.0: MThd, MTrk chunks,
+ * meta event FF 03 = sequence/track name, 9n/8n = note on/off, FF 2F 00 = end of track) with no
+ * conductor track: the first track is a part, so its name is the part's, not the piece's.
+ */
+function rawSmf(tracks: { name: string, note: number }[]): Uint8Array {
+  const bytes: number[] = []
+  const u32 = (n: number) => [(n >>> 24) & 255, (n >>> 16) & 255, (n >>> 8) & 255, n & 255]
+  const u16 = (n: number) => [(n >>> 8) & 255, n & 255]
+  bytes.push(...[0x4d, 0x54, 0x68, 0x64], ...u32(6), ...u16(1), ...u16(tracks.length), ...u16(480))
+  tracks.forEach((t, i) => {
+    const name = [...new TextEncoder().encode(t.name)]
+    // Delta 960 ticks (two quarter notes) as a variable-length quantity: 0x87 0x40.
+    const body = [0x00, 0xff, 0x03, name.length, ...name, 0x00, 0x90 + i, t.note, 0x50, 0x87, 0x40, 0x80 + i, t.note, 0x40, 0x00, 0xff, 0x2f, 0x00]
+    bytes.push(...[0x4d, 0x54, 0x72, 0x6b], ...u32(body.length), ...body)
+  })
+  return new Uint8Array(bytes)
+}
+
+describe('MIDI import title', () => {
+  const file = rawSmf([{ name: 'Tenor', note: 57 }, { name: 'Bass', note: 45 }])
+
+  it('never takes a part\'s track name for the title', () => {
+    const drill = midiToDrill(file)
+    expect(drill.parts.map(p => p.name)).toEqual(['Tenor', 'Bass'])
+    expect(drill.title).not.toBe('Tenor')
+    expect(drill.title).toBe('Imported from MIDI')
+  })
+
+  it('uses the file\'s name (without folders and extension) when no title is typed', () => {
+    expect(midiToDrill(file, { fileName: 'Evening_hymn.mid' }).title).toBe('Evening hymn')
+    expect(midiToDrill(file, { fileName: 'scores/Long tones in Bb.MIDI' }).title).toBe('Long tones in Bb')
+  })
+
+  it('a typed title wins over the file\'s name', () => {
+    expect(midiToDrill(file, { title: 'Tuning the tenors', fileName: 'Evening_hymn.mid' }).title).toBe('Tuning the tenors')
+  })
+
+  it('keeps a sequence name that names no part', () => {
+    const named = smf({ Soprano: [[72, 0, 2]] }, { name: 'Chorale' })
+    expect(midiToDrill(named).title).toBe('Chorale')
+    expect(midiToDrill(named, { fileName: 'take-this.mid' }).title).toBe('take-this')
+  })
+})
+
 describe('MIDI import', () => {
   it('one part per track named after it, chords where the sounding set changes, tempo from the file', () => {
     const bytes = smf({

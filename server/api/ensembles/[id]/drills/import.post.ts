@@ -15,7 +15,7 @@ export default defineEventHandler(async (event): Promise<DrillImportResult> => {
   const fields = Fields.safeParse(form.fields)
   if (!fields.success) throw apiError(400, 'invalid_input', 'Invalid input', { issues: formatIssues(fields.error) })
   if (!form.file || form.file.bytes.length === 0) throw apiError(400, 'missing_file', 'No drill file', { field: 'file' })
-  const read = drillFromFile(form.file.bytes, fields.data.title || undefined)
+  const read = drillFromFile(form.file.bytes, fields.data.title || undefined, form.file.name)
   if ('refused' in read) throw apiError(read.refused === 'not_a_drill' ? 415 : 400, read.refused, read.message, read.details)
   const doc = read.document
   let saved

@@ -1,0 +1,92 @@
+import { describe, expect, it } from 'vitest'
+import { DRIFT_TOO_FEW, driftText, formatWholeCents, holdKind, withReferencePitch, wrongNote, wrongNoteText } from '../../../shared/report-wording'
+import { computeTargets } from '../../../shared/tuning/index'
+import type { DrillDocument } from '../../../shared/drill/schema'
+
+// 100 cents to the equal-tempered semitone, 1200 to the octave (common practice; A. J. Ellis's
+// definition of the cent, 1885). Equal-tempered frequencies at A4 = 440 Hz from the standard
+// table (C4 261.626 Hz, E♭4 311.127 Hz, A3 220.000 Hz, C5 523.251 Hz).
+const C4 = 261.6256
+const cents = (f1: number, f2: number) => 1200 * Math.log2(f2 / f1)
+
+const base = { note: 'C4', centsFromTarget: null, centsFromEqual: null, reason: null }
+
+describe('wrong notes are named, never scored', () => {
+  it.each([
+    // Three semitones above C4 is E♭4: 1200·log2(311.127/261.626) = +300.0 ¢.
+    [{ ...base, detectedHz: 311.127, reasonCode: 'wrong_note', heardNote: 'Eb4', heardCentsFromExpected: cents(C4, 311.127) }, 'Wrong note: heard Eb4, +300 ¢ from the expected C4'],
+    // Three semitones below C4 is A3 (220 Hz): −300 ¢, with the true minus sign (U+2212).
+    [{ ...base, detectedHz: 220, reasonCode: 'wrong_note', heardNote: 'A3', heardCentsFromExpected: cents(C4, 220) }, 'Wrong note: heard A3, \u2212300 ¢ from the expected C4'],
+    // An octave error is a wrong note too: C5 is 1200 ¢ above C4.
+    [{ ...base, detectedHz: 523.251, reasonCode: 'octave_high', heardNote: 'C5', heardCentsFromExpected: cents(C4, 523.251) }, 'Wrong note: heard C5, +1200 ¢ from the expected C4'],
+  ])('%#: %j', (hold, text) => {
+    expect(wrongNoteText(hold)).toBe(text)
+    expect(holdKind(hold)).toBe('wrong')
+  })
+
+  it('reads a report stored before wrong notes were told apart: a hold 294 ¢ sharp of C4 was E♭4', () => {
+    // 294 ¢ rounds to 3 semitones; C4 + 3 semitones = E♭4 (common practice).
+    const old = { ...base, detectedHz: C4 * 2 ** (294 / 1200), centsFromTarget: 294, centsFromEqual: 294, reasonCode: null }
+    expect(wrongNote(old)).toEqual({ heardNote: 'Eb4', cents: 294, expected: 'C4' })
+    expect(wrongNoteText(old)).toBe('Wrong note: heard Eb4, +294 ¢ from the expected C4')
+    expect(holdKind(old)).toBe('wrong')
+  })
+
+  it('a hold within half a semitone is a tuning deviation, however far off', () => {
+    // 49 ¢ is under half of the 100-cent semitone: still the expected note, badly tuned.
+    const sharp = { ...base, detectedHz: C4 * 2 ** (49 / 1200), centsFromTarget: 49, centsFromEqual: 49, reasonCode: null }
+    expect(wrongNote(sharp)).toBeNull()
+    expect(holdKind(sharp)).toBe('measured')
+  })
+
+  it('keeps the analysis\' sentence when it gives no heard note, and writes display names when asked', () => {
+    const sentence = { ...base, detectedHz: null, reasonCode: 'wrong_note', reason: 'Heard a pitch about 3 semitones above C4' }
+    expect(wrongNoteText(sentence)).toBe('Wrong note: heard a pitch about 3 semitones above C4')
+    const pretty = { ...base, note: 'Bb3', detectedHz: 293.665, reasonCode: 'wrong_note', heardNote: 'D4', heardCentsFromExpected: 400 }
+    expect(wrongNoteText(pretty, n => n.replace('b', '\u266d'))).toBe('Wrong note: heard D4, +400 ¢ from the expected B\u266d3')
+  })
+
+  it('a hold without a pitch is neither measured nor a wrong note', () => {
+    expect(holdKind({ ...base, detectedHz: null, reasonCode: 'no_pitch', reason: 'silence' })).toBe('missing')
+  })
+
+  it.each([[300, '+300 ¢'], [-1200, '\u22121200 ¢'], [0.4, '0 ¢'], [299.6, '+300 ¢']])('whole cents %d → %s', (c, s) => {
+    expect(formatWholeCents(c)).toBe(s)
+  })
+})
+
+describe('drift', () => {
+  it.each([
+    [null, DRIFT_TOO_FEW],
+    [undefined, DRIFT_TOO_FEW],
+    [Number.NaN, DRIFT_TOO_FEW],
+    [-1.23, '\u22121.2 ¢/min'],
+    [0.02, '0.0 ¢/min'],
+    [4, '+4.0 ¢/min'],
+  ])('%s → %s', (d, text) => {
+    expect(driftText(d as number | null | undefined)).toBe(text)
+  })
+  it('says "not enough holds" in those words', () => {
+    expect(DRIFT_TOO_FEW).toBe('not enough holds')
+  })
+})
+
+describe('the reference pitch is named once', () => {
+  const drill = (system: DrillDocument['system'], a4: number): DrillDocument => ({
+    title: 'Check', key: 'C major', tempo: 60, a4, tolerance: 10, system,
+    parts: [{ name: 'Lead' }], chords: [{ beats: 2, notes: { Lead: 'C4' } }],
+  } as unknown as DrillDocument)
+
+  it('an equal-temperament description already names A4: it is not repeated', () => {
+    const d = computeTargets(drill({ name: 'equal', seventh: 'harmonic', fraction: '1/4' } as DrillDocument['system'], 440)).description
+    const text = withReferencePitch(d, 440)
+    expect(text.match(/A4 = 440 Hz/g)).toHaveLength(1)
+  })
+
+  it('other systems get the reference pitch added once', () => {
+    const d = computeTargets(drill({ name: 'just-root', seventh: 'harmonic', fraction: '1/4' } as DrillDocument['system'], 442)).description
+    expect(d).not.toContain('A4')
+    expect(withReferencePitch(d, 442)).toBe(`${d}, A4 = 442 Hz`)
+    expect(withReferencePitch(withReferencePitch(d, 442), 442).match(/A4 =/g)).toHaveLength(1)
+  })
+})
