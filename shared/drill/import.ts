@@ -16,6 +16,8 @@ export interface DrillFileOptions {
   bars?: string | BarRange
   /** Key for a MIDI file ("Eb major"); MIDI files often carry none. */
   key?: string
+  /** Read a file of no known format as a drill document (so its JSON error is reported). */
+  textAsJson?: boolean
 }
 
 export interface DrillFileResult {
@@ -43,7 +45,7 @@ export function detectDrillFormat(bytes: Uint8Array, fileName?: string): DrillFi
  * message naming the bar, track or field; code 'unknown_format' for a file of no format we read.
  */
 export function readDrillFile(bytes: Uint8Array, opts: DrillFileOptions = {}): DrillFileResult {
-  const format = detectDrillFormat(bytes, opts.fileName)
+  const format = detectDrillFormat(bytes, opts.fileName) ?? (opts.textAsJson ? 'json' : null)
   const bars = typeof opts.bars === 'string' ? parseBars(opts.bars) : opts.bars
   const warnings: string[] = []
   const title = opts.title?.trim() || undefined

@@ -144,7 +144,7 @@ export function midiToDrill(bytes: Uint8Array, opts: MidiImportOptions = {}): Dr
   })
   if (!parts.length) {
     if (opts.bars && midi.tracks.some(t => t.notes.length)) throw new TuningError('midi_no_notes', `The MIDI file has no notes${where}`, 'bars')
-    throw new TuningError('midi_no_notes', 'The MIDI file has no note events: no track plays a note, so there is nothing to tune')
+    throw new TuningError('midi_no_tracks', 'The MIDI file has no tracks with notes (no note events), so there is nothing to tune')
   }
   if (parts.length > 16) throw new TuningError('midi_too_many_parts', `The MIDI file has ${parts.length} tracks with notes; a drill has at most 16 parts`)
 
