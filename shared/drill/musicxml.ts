@@ -283,7 +283,8 @@ function normalise(s: string): string {
 export function guessInstrument(names: string[], writtenMinusConcert: number, octaveClef: boolean): string | undefined {
   const wanted = names.map(normalise).filter(Boolean)
   const all = Object.values(INSTRUMENTS).filter(i => i.id !== 'concert')
-  const exact = all.find(i => wanted.includes(normalise(i.label)) && (i.semitones === writtenMinusConcert || (i.clef === 'treble-8vb' && octaveClef && !writtenMinusConcert)))
+  // The label itself (our export writes it): the notes are read at concert pitch either way.
+  const exact = all.find(i => wanted.includes(normalise(i.label)))
   if (exact) return exact.id
   if (!writtenMinusConcert) {
     if (octaveClef && wanted.some(w => /\bten/.test(w))) return 'voice-tenor'
