@@ -1,3 +1,4 @@
+import type { Knex } from 'knex'
 import { readDrillFile, renameParts, type DrillFileResult } from '../../shared/drill/import'
 import { drillToMusicXml, exportFileName } from '../../shared/drill/export-musicxml'
 import { drillToMidi } from '../../shared/drill/export-midi'
@@ -40,4 +41,10 @@ export function drillExport (doc: DrillDocument, format: DrillExportFormat, pitc
 export function attachment (fileName: string): string {
   const ascii = fileName.normalize('NFKD').replace(/[^\x20-\x7e]/g, '').replace(/["\\]/g, '') || 'drill'
   return `attachment; filename="${ascii}"; filename*=UTF-8''${encodeURIComponent(fileName)}`
+}
+
+/** Names of an ensemble's sections in their order (what imported parts are renamed to). */
+export async function sectionNames (db: Knex, ensembleId: number): Promise<string[]> {
+  const rows = await db('sections').where({ ensemble_id: ensembleId }).orderBy([{ column: 'position' }, { column: 'id' }]).select('name')
+  return rows.map(r => r.name as string)
 }

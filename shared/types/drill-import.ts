@@ -11,6 +11,8 @@ export interface DrillImportPreview {
   warnings: string[]
   parts: string[]
   chords: number
+  /** The ensemble's section names, for renaming imported parts (field `parts` of the import). */
+  sections: string[]
 }
 
 /** Formats of GET /api/drills/:id/export. */

@@ -19,7 +19,7 @@ export default defineEventHandler(async (event): Promise<DrillImportResult | Dri
   if ('refused' in read) throw apiError(read.refused === 'not_a_drill' ? 415 : 400, read.refused, read.message, read.details)
   const { format, drill, warnings } = read
   const partNames = drill.parts.map(p => p.name)
-  if (preview === '1' || preview === 'true') return { preview: true, format, drill, warnings, parts: partNames, chords: drill.chords.length }
+  if (preview === '1' || preview === 'true') return { preview: true, format, drill, warnings, parts: partNames, chords: drill.chords.length, sections: await sectionNames(db, id) }
   let saved
   try {
     saved = await saveDrill(db, id, drill, user.id)
