@@ -144,7 +144,7 @@ export function drillToMusicXml(doc: DrillDocument, opts: MusicXmlExportOptions 
     const transposing = written && !!inst && inst.interval !== '1P' && !octaveClef
     const midis = doc.chords.map(c => c.notes[p.name]).filter((n): n is string => !!n).map(n => parseNote(n).midi)
     const average = midis.length ? midis.reduce((s, m) => s + m, 0) / midis.length : 60
-    const clef = inst && (written || octaveClef || inst.clef !== 'treble') ? inst.clef : average < 57 ? 'bass' : 'treble'
+    const clef = inst && (written || octaveClef || inst.clef !== 'treble') ? inst.clef : average < 60 ? 'bass' : 'treble'
     let partFifths = fifths
     if (transposing) {
       const tonic = Note.transpose(`${parseKey(doc.key).tonic.pc}4`, inst!.interval)
