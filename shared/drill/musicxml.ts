@@ -35,6 +35,8 @@ export function parseBars(text: string | undefined | null): BarRange | undefined
 
 
 const EPS = 1e-6
+/** Largest unpacked score read from an .mxl file. */
+const MAX_SCORE_BYTES = 32 * 1024 * 1024
 const LETTERS = ['C', 'D', 'E', 'F', 'G', 'A', 'B']
 const NATURAL = [0, 2, 4, 5, 7, 9, 11]
 const NEUTRAL = ['C', 'C#', 'D', 'Eb', 'E', 'F', 'F#', 'G', 'Ab', 'A', 'Bb', 'B']
@@ -101,11 +103,20 @@ interface PartRead {
 /** Unpacks a compressed MusicXML file (.mxl): the score named by META-INF/container.xml. */
 export function readMxl(bytes: Uint8Array): string {
   let files: Record<string, Uint8Array>
+  let tooLarge: string | null = null
   try {
-    files = unzipSync(bytes)
+    // Only the container and scores are unpacked, and none larger than a score can reasonably be.
+    files = unzipSync(bytes, {
+      filter: (f) => {
+        const wanted = f.name === 'META-INF/container.xml' || /\.(musicxml|xml)$/i.test(f.name)
+        if (wanted && f.originalSize > MAX_SCORE_BYTES) tooLarge = f.name
+        return wanted && f.originalSize <= MAX_SCORE_BYTES
+      },
+    })
   } catch {
     throw new TuningError('mxl_unreadable', 'The compressed MusicXML file (.mxl) cannot be unpacked; it is not a valid zip archive')
   }
+  if (tooLarge) throw new TuningError('mxl_too_large', `"${tooLarge}" in the .mxl file unpacks to more than ${MAX_SCORE_BYTES / 1024 / 1024} MB; a drill's score is far smaller`)
   const container = files['META-INF/container.xml']
   let path: string | undefined
   if (container) {
@@ -396,10 +407,15 @@ export function musicXmlToDrill(text: string, opts: ScoreImportOptions = {}): Dr
     const edges = [...new Set(p.items.flatMap(it => [it.start, it.end]))].sort((a, b) => a - b)
     type Entry = Item | null
     const segments: { start: number, end: number, entries: Entry[] }[] = []
+    const byStart = [...p.items].sort((a, b) => a.start - b.start)
+    let next = 0
+    let active: Item[] = []
     for (let i = 0; i + 1 < edges.length; i++) {
       const start = edges[i]!
       const end = edges[i + 1]!
-      const covering = p.items.filter(it => it.start <= start + EPS && it.end >= end - EPS)
+      while (next < byStart.length && byStart[next]!.start <= start + EPS) active.push(byStart[next++]!)
+      active = active.filter(it => it.end > start + EPS)
+      const covering = active.filter(it => it.end >= end - EPS)
       const entries: Entry[] = []
       for (const v of voices) {
         const inVoice = covering.filter(it => it.voice === v)

@@ -34,6 +34,8 @@ function toElement(node: Ordered): XmlElement | null {
  */
 export function parseXml(text: string): XmlElement {
   const clean = text.replace(/^\uFEFF/, '')
+  // A score needs no entities of its own; declared ones could expand without bound.
+  if (/<!ENTITY/i.test(clean)) throw new TuningError('xml_entities', 'The file declares its own XML entities, which a MusicXML score does not use; it was not read')
   const valid = XMLValidator.validate(clean)
   if (valid !== true) {
     const { line, msg } = valid.err

@@ -198,3 +198,15 @@ describe('part names and renaming', () => {
     expect(() => renameParts(drill, { Tenor: 'Bass' })).toThrow(/no part "Tenor"/)
   })
 })
+
+describe('files built to exhaust the server are refused', () => {
+  it('an internal DTD declaring entities (they could expand without bound; MusicXML needs none)', () => {
+    const text = '<?xml version="1.0"?><!DOCTYPE score-partwise [<!ENTITY a "aaaaaaaaaa"><!ENTITY b "&a;&a;&a;&a;">]><score-partwise>&b;</score-partwise>'
+    expect(() => musicXmlToDrill(text)).toThrow(expect.objectContaining({ code: 'xml_entities' }))
+  })
+
+  it('an .mxl whose score unpacks to more than 32 MB', () => {
+    const huge = new Uint8Array(33 * 1024 * 1024) // zeros compress about a thousand to one
+    expect(() => readMxl(zipSync({ 'score.musicxml': huge }))).toThrow(expect.objectContaining({ code: 'mxl_too_large' }))
+  })
+})
