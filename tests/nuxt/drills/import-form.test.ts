@@ -3,6 +3,7 @@ import { flushPromises } from '@vue/test-utils'
 import { mountSuspended, registerEndpoint } from '@nuxt/test-utils/runtime'
 import DrillImportForm from '~/components/drills/DrillImportForm.vue'
 import DrillNotation from '~/components/drills/DrillNotation.client.vue'
+import { parseDrill } from '#shared/drill/schema'
 
 // The notation library draws into an SVG in a real browser (the e2e test checks that); here it is
 // replaced by a recorder of the MusicXML it is given.
@@ -17,11 +18,11 @@ vi.mock('opensheetmusicdisplay', () => ({
 
 // An invented import (the shapes are the API's); the B-flat trumpet's written pitch is a major
 // second above concert (common practice).
-const drill = {
+const drill = parseDrill({
   title: 'Pier Warm-up', key: 'F major', tempo: 60, a4: 440, system: { name: 'equal', seventh: 'harmonic', fraction: '1/4' }, tolerance: 10,
   parts: [{ name: 'Women 1' }, { name: 'Women 2' }, { name: 'Trumpet', instrument: 'trumpet-bb' }],
   chords: [{ beats: 4, notes: { 'Women 1': 'A4', 'Women 2': 'F4', 'Trumpet': 'C5' } }],
-}
+})
 let calls = 0
 registerEndpoint('/api/ensembles/1/drills/import', {
   method: 'POST',
