@@ -15,7 +15,7 @@ against the targets of a tuning system (cents from target and from equal tempera
 
 Options:
   --audio FILE       the take: WAV, FLAC, MP3, Ogg Vorbis, Ogg Opus, WebM/Opus or MP4/AAC (.m4a)
-  --drill FILE       drill document (.json) or Standard MIDI File (.mid, .midi)
+  --drill FILE       drill document (.json), Standard MIDI File (.mid), MusicXML (.musicxml, .xml) or .mxl
   --part NAME        the part that was played or sung (as named in the drill)
 ${SYSTEM_HELP}
   --a4 HZ            reference pitch A4, from 415 to 466 Hz (default: the drill's)

@@ -1,9 +1,9 @@
 // What the `driftline` commands share, so a drill and a tuning system read the same in each of them.
 import { readFile } from 'node:fs/promises'
-import { extname } from 'node:path'
+import { basename } from 'node:path'
 import { parseArgs } from 'node:util'
 import type { ParseArgsConfig } from 'node:util'
-import { midiToDrill } from '../shared/drill/midi'
+import { readDrillFile } from '../shared/drill/import'
 import type { DrillDocument, SystemOptions } from '../shared/drill/schema'
 import { parseDrill, SYSTEM_NAMES } from '../shared/drill/schema'
 import { TuningError } from '../shared/tuning/index'
@@ -66,17 +66,9 @@ export async function readInput(path: string, what: string): Promise<Uint8Array>
 /** Loads a drill from JSON or MIDI; the header is sniffed too, since MIDI files often come without the extension. */
 export async function loadDrill(path: string, key: string | undefined): Promise<DrillDocument> {
   const bytes = await readInput(path, 'drill file')
-  const ext = extname(path).toLowerCase()
-  const isMidi = ext === '.mid' || ext === '.midi' || (bytes.length >= 4 && String.fromCharCode(...bytes.subarray(0, 4)) === 'MThd')
-  if (isMidi) return midiToDrill(bytes, { fileName: path, ...(key ? { key } : {}) })
-  let text: string
-  try {
-    text = new TextDecoder('utf-8', { fatal: true }).decode(bytes)
-  } catch {
-    throw new TuningError('invalid_json', `The drill file "${path}" is neither a MIDI file nor UTF-8 JSON text`)
-  }
-  const drill = parseDrill(text)
-  return key ? parseDrill({ ...drill, key }) : drill
+  // Drill JSON, a Standard MIDI File, MusicXML or compressed MusicXML (.mxl), told apart by their first bytes.
+  const { drill } = readDrillFile(bytes, { fileName: basename(path), key, textAsJson: true })
+  return drill
 }
 
 /** Rejects an unknown --system or --seventh before any file is read, so usage errors come first. */

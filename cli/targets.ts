@@ -11,7 +11,7 @@ Prints the target pitch of every note of a drill in a tuning system: Hz, cents f
 equal temperament at the reference pitch, and the ratio to the chord root.
 
 Options:
-  --drill FILE       drill document (.json) or Standard MIDI File (.mid, .midi)
+  --drill FILE       drill document (.json), Standard MIDI File (.mid), MusicXML (.musicxml, .xml) or .mxl
 ${SYSTEM_HELP}
   --a4 HZ            reference pitch A4, from 415 to 466 Hz (default: the drill's, else 440)
 ${TUNING_HELP}

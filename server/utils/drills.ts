@@ -2,9 +2,8 @@
 // pages read, and reading an uploaded drill file.
 import type { Knex } from 'knex'
 import { noteToMidi } from '../../shared/tuning/pitch'
-import { DrillDocument, parseDrill, type DrillInput } from '../../shared/drill/schema'
+import { DrillDocument, type DrillInput } from '../../shared/drill/schema'
 import type { DrillListItem } from '../../shared/types/drill-view'
-import { midiToDrill } from '../../shared/drill/midi'
 import type { DrillAccess } from './access'
 import { partForSection } from './home'
 import { describeValue, jsonErrorPlace } from '../../shared/text'
@@ -162,34 +161,3 @@ export const MAX_DRILL_FILE_BYTES = 2 * 1024 * 1024
 
 /** Why a drill file could not be read (the route answers 415 for `not_a_drill`, else 400). */
 export interface DrillFileProblem { refused: string, message: string, details: Record<string, unknown> }
-
-/**
- * A drill document from an uploaded file: a Standard MIDI File (starts with "MThd") or a drill
- * JSON document; `title` replaces the document's own.
- */
-export function drillFromFile (bytes: Uint8Array, title?: string, fileName?: string | null): { document: DrillDocument } | DrillFileProblem {
-  const isMidi = bytes.length >= 4 && bytes[0] === 0x4d && bytes[1] === 0x54 && bytes[2] === 0x68 && bytes[3] === 0x64
-  try {
-    if (isMidi) return { document: midiToDrill(bytes, { ...(title ? { title } : {}), ...(fileName ? { fileName } : {}) }) }
-    const text = new TextDecoder('utf-8', { fatal: false }).decode(bytes).replace(/^\uFEFF/, '').trim()
-    if (!text.startsWith('{')) return { refused: 'not_a_drill', message: 'Not a drill file', details: { expected: 'drill JSON or Standard MIDI File' } }
-    let json: Record<string, unknown>
-    try { json = JSON.parse(text) } catch {
-      const place = jsonErrorPlace(text)
-      return { refused: 'invalid_json', message: 'Drill file is not valid JSON', details: { message: `The drill file is not valid JSON${place ? ` (${place})` : ''}`, path: place } }
-    }
-    if (!json || typeof json !== 'object' || Array.isArray(json)) {
-      return { refused: 'invalid_drill', message: 'Invalid drill file', details: { message: 'The drill file must hold one drill object', path: null, issues: [] } }
-    }
-    if (title) json = { ...json, title }
-    return { document: parseDrill(json) }
-  } catch (err) {
-    const e = err as { name?: string, code?: string, message?: string, path?: string | null, issues?: unknown[] }
-    if (e?.name === 'TuningError') {
-      return { refused: e.code ?? 'invalid_drill', message: 'Invalid drill file', details: { message: e.message, path: e.path ?? null, issues: e.issues ?? [] } }
-    }
-    // Anything else is a reader failing on a damaged file: its wording stays in the log.
-    console.warn(`[drills] import failed: ${(err as Error)?.message ?? String(err)}`)
-    return { refused: 'unreadable_drill', message: 'Invalid drill file', details: { message: 'The drill file cannot be read', path: null, issues: [] } }
-  }
-}

@@ -3,17 +3,20 @@ import { Key } from '@tonaljs/tonal'
 import { TuningError } from '../tuning/errors'
 import { plainIssueMessage } from '../text'
 import { mod, parseKey } from '../tuning/pitch'
-import type { DrillDocument, DrillInput, SystemOptions } from './schema'
-import { DrillDocument as DrillSchema } from './schema'
+import type { DrillDocument, DrillInput } from './schema'
+import { DrillDocument as DrillSchema, SystemOptions } from './schema'
+import { MIDI_CHORD_PREFIX, MIDI_SETTINGS_PREFIX } from './export-midi'
 
 // @tonejs/midi is CommonJS: the named import fails in the built server.
 const { Midi } = pkg
 
 export interface MidiImportOptions {
-  /** The drill's title as the person typed it; wins over everything in the file. */
+  /** Replaces every other title. */
   title?: string
-  /** The uploaded file's name ("Evening hymn.mid"): the title when none is typed. */
+  /** The uploaded file's name: the title when no `title` is given (before the file's own sequence name). */
   fileName?: string
+  /** Bars to keep (1 = the first bar, inclusive). */
+  bars?: { from: number, to: number }
   /** Key as "Eb major"; defaults to the file's first key signature, else C major. */
   key?: string
   a4?: number
@@ -25,6 +28,8 @@ export interface MidiImportOptions {
   warnings?: string[]
 }
 
+const MAJOR_BY_FIFTHS = ['Cb', 'Gb', 'Db', 'Ab', 'Eb', 'Bb', 'F', 'C', 'G', 'D', 'A', 'E', 'B', 'F#', 'C#']
+const MINOR_BY_FIFTHS = ['Ab', 'Eb', 'Bb', 'F', 'C', 'G', 'D', 'A', 'E', 'B', 'F#', 'C#', 'G#', 'D#', 'A#']
 const SEMI: Record<string, number> = { C: 0, D: 2, E: 4, F: 5, G: 7, A: 9, B: 11 }
 const NEUTRAL = ['C', 'C#', 'D', 'Eb', 'E', 'F', 'F#', 'G', 'Ab', 'A', 'Bb', 'B']
 const SHARPS = ['C', 'C#', 'D', 'D#', 'E', 'F', 'F#', 'G', 'G#', 'A', 'A#', 'B']
@@ -109,7 +114,11 @@ export function midiToDrill(bytes: Uint8Array, opts: MidiImportOptions = {}): Dr
   const fileKey = midi.header.keySignatures[0]
   let key = opts.key ?? 'C major'
   if (!opts.key && fileKey) {
-    const candidate = `${fileKey.key} ${fileKey.scale === 'minor' ? 'minor' : 'major'}`
+    // The key-signature event stores sharps/flats and a minor flag; @tonejs/midi names the major key of
+    // that signature, so a minor key's tonic is the relative minor (three fifths lower).
+    const fifths = MAJOR_BY_FIFTHS.indexOf(fileKey.key) - 7
+    const tonic = fileKey.scale === 'minor' ? MINOR_BY_FIFTHS[fifths + 7] : fileKey.key
+    const candidate = `${tonic} ${fileKey.scale === 'minor' ? 'minor' : 'major'}`
     try {
       parseKey(candidate)
       key = candidate
@@ -119,6 +128,15 @@ export function midiToDrill(bytes: Uint8Array, opts: MidiImportOptions = {}): Dr
     }
   }
   const spell = speller(key)
+
+  // The bar range as ticks: bar n starts where n − 1 whole bars have passed.
+  let windowStart = 0
+  let windowEnd = Number.POSITIVE_INFINITY
+  if (opts.bars) {
+    windowStart = barStartTicks(midi, opts.bars.from - 1)
+    windowEnd = barStartTicks(midi, opts.bars.to)
+  }
+  const where = opts.bars ? ` in bars ${opts.bars.from}–${opts.bars.to}` : ''
 
   const parts: { name: string, notes: PartNote[] }[] = []
   const used = new Set<string>()
@@ -134,7 +152,8 @@ export function midiToDrill(bytes: Uint8Array, opts: MidiImportOptions = {}): Dr
     const label = `Track ${ti + 1} "${name}"`
     const notes = track.notes
       .filter(n => n.durationTicks > 0)
-      .map(n => ({ midi: n.midi, start: n.ticks, end: n.ticks + n.durationTicks }))
+      .map(n => ({ midi: n.midi, start: Math.max(n.ticks, windowStart), end: Math.min(n.ticks + n.durationTicks, windowEnd) }))
+      .filter(n => n.end > n.start)
       .sort((a, b) => a.start - b.start || a.midi - b.midi)
     // Notation programs sometimes let a legato note overlap the next by a few ticks; trim those.
     const legato = ppq / 32
@@ -148,14 +167,17 @@ export function midiToDrill(bytes: Uint8Array, opts: MidiImportOptions = {}): Dr
           `track ${ti + 1}, bar ${bar(b.start)}`)
       }
     }
-    parts.push({ name, notes })
+    if (notes.length) parts.push({ name, notes })
   })
-  if (!parts.length) throw new TuningError('midi_no_tracks', 'The MIDI file has no tracks with notes')
+  if (!parts.length) {
+    if (opts.bars && midi.tracks.some(t => t.notes.length)) throw new TuningError('midi_no_notes', `The MIDI file has no notes${where}`, 'bars')
+    throw new TuningError('midi_no_tracks', 'The MIDI file has no tracks with notes (no note events), so there is nothing to tune')
+  }
   if (parts.length > 16) throw new TuningError('midi_too_many_parts', `The MIDI file has ${parts.length} tracks with notes; a drill has at most 16 parts`)
 
   const times = new Set<number>()
   for (const p of parts) for (const n of p.notes) { times.add(n.start); times.add(n.end) }
-  if (!times.has(0)) times.add(0)
+  if (!times.has(windowStart)) times.add(windowStart)
   const edges = [...times].sort((a, b) => a - b)
   const cursor = parts.map(() => 0)
   type Segment = { start: number, end: number, sounding: (PartNote | null)[] }
@@ -177,7 +199,8 @@ export function midiToDrill(bytes: Uint8Array, opts: MidiImportOptions = {}): Dr
   const chords = segments.map(s => {
     const beats = Math.round(((s.end - s.start) / ppq) * 1e6) / 1e6
     if (beats > 64) throw new TuningError('midi_too_long', `Bar ${bar(s.start)}: a chord or rest lasts ${beats} beats; a drill chord lasts at most 64`, `bar ${bar(s.start)}`)
-    return { beats, notes: Object.fromEntries(parts.map((p, pi) => [p.name, s.sounding[pi] ? spell(s.sounding[pi]!.midi) : null])) }
+    const symbol = midi.header.meta.find(m => m.type === 'text' && m.ticks === s.start && m.text.startsWith(MIDI_CHORD_PREFIX))?.text.slice(MIDI_CHORD_PREFIX.length).trim().slice(0, 20)
+    return { beats, ...(symbol ? { symbol } : {}), notes: Object.fromEntries(parts.map((p, pi) => [p.name, s.sounding[pi] ? spell(s.sounding[pi]!.midi) : null])) }
   })
 
   const tempos = midi.header.tempos
@@ -189,14 +212,21 @@ export function midiToDrill(bytes: Uint8Array, opts: MidiImportOptions = {}): Dr
     throw new TuningError('midi_tempo', `The file's tempo is ${tempo} beats per minute; a drill's tempo is from 20 to 300`)
   }
 
+  const settings = readSettings(midi.header.meta)
   const input: DrillInput = {
     title: importTitle(opts, midi.header.name, parts.map(p => p.name)),
     key,
     tempo,
+    ...(settings.a4 !== undefined ? { a4: settings.a4 } : {}),
+    ...(settings.system ? { system: settings.system } : {}),
+    ...(settings.tolerance !== undefined ? { tolerance: settings.tolerance } : {}),
     ...(opts.a4 !== undefined ? { a4: opts.a4 } : {}),
     ...(opts.system ? { system: opts.system } : {}),
     ...(opts.tolerance !== undefined ? { tolerance: opts.tolerance } : {}),
-    parts: parts.map(p => ({ name: p.name, ...(opts.instruments?.[p.name] ? { instrument: opts.instruments[p.name] } : {}) })),
+    parts: parts.map((p) => {
+      const instrument = opts.instruments?.[p.name] ?? settings.instruments[p.name]
+      return { name: p.name, ...(instrument ? { instrument } : {}) }
+    }),
     chords,
   }
   const result = DrillSchema.safeParse(input, { error: plainIssueMessage })
@@ -206,4 +236,33 @@ export function midiToDrill(bytes: Uint8Array, opts: MidiImportOptions = {}): Dr
     throw new TuningError('invalid_drill', `The imported drill is not valid: ${path}: ${issue.message}`, path)
   }
   return result.data
+}
+
+/** Ticks at which bar `index` (0 = the first) starts, from the file's time signatures (4/4 when none). */
+function barStartTicks(midi: InstanceType<typeof Midi>, index: number): number {
+  const ppq = midi.header.ppq
+  const sigs = midi.header.timeSignatures as { ticks: number, timeSignature: number[], measures?: number }[]
+  const sig = [...sigs].reverse().find(t => (t.measures ?? 0) <= index)
+  if (!sig) return index * 4 * ppq
+  const [num = 4, den = 4] = sig.timeSignature
+  return sig.ticks + (index - (sig.measures ?? 0)) * ppq * 4 * num / den
+}
+
+/** A4, tolerance, system and instruments as our own export writes them in a text event (ignored when unreadable). */
+function readSettings(meta: { type: string, text: string }[]): { a4?: number, tolerance?: number, system?: SystemOptions, instruments: Record<string, string> } {
+  const event = meta.find(m => m.type === 'text' && m.text.startsWith(MIDI_SETTINGS_PREFIX))
+  if (!event) return { instruments: {} }
+  try {
+    const v = JSON.parse(event.text.slice(MIDI_SETTINGS_PREFIX.length)) as Record<string, unknown>
+    const system = SystemOptions.safeParse(v.system)
+    const instruments = v.instruments && typeof v.instruments === 'object' ? v.instruments as Record<string, unknown> : {}
+    return {
+      ...(typeof v.a4 === 'number' ? { a4: v.a4 } : {}),
+      ...(typeof v.tolerance === 'number' ? { tolerance: v.tolerance } : {}),
+      ...(system.success ? { system: system.data } : {}),
+      instruments: Object.fromEntries(Object.entries(instruments).filter((e): e is [string, string] => typeof e[1] === 'string')),
+    }
+  } catch {
+    return { instruments: {} }
+  }
 }

@@ -48,4 +48,6 @@ export interface DrillImportResult {
   id: number
   parts: string[]
   chords: number
+  /** What the import did that a person should know (crossing voices, divided parts), naming the bar. */
+  warnings: string[]
 }

@@ -485,6 +485,6 @@ describe('drills for takes', () => {
     titled.append('file', new Blob([JSON.stringify(triadDrill())]), 'd.json')
     const ok = await app.fetch(`/api/ensembles/${choir}/drills/import`, { method: 'POST', cookie: director, body: titled })
     expect(ok.status).toBe(201)
-    expect(await ok.json()).toEqual({ id: expect.any(Number), parts: ['Soprano'], chords: 3 })
+    expect(await ok.json()).toEqual({ id: expect.any(Number), parts: ['Soprano'], chords: 3, warnings: [] })
   })
 })

@@ -22,16 +22,19 @@ function smf(tracks: Record<string, N[]>, opts: { bpm?: number, key?: string, sc
     if (opts.channel?.[name] !== undefined) t.channel = opts.channel[name]!
     for (const [midi, start, beats] of notes) t.addNote({ midi, ticks: Math.round(start * ppq), durationTicks: Math.round(beats * ppq) })
   }
-  return fixKeySignature(m.toArray(), opts.key)
+  return fixKeySignature(m.toArray(), opts.key, opts.scale)
 }
 
 // @tonejs/midi's encoder stores the key-signature byte as (index + 7) instead of the Standard MIDI
 // File's signed count of sharps (+) or flats (−); write the standard byte so the file is a real SMF.
 const SHARPS_FLATS: Record<string, number> = { Cb: -7, Gb: -6, Db: -5, Ab: -4, Eb: -3, Bb: -2, F: -1, C: 0, G: 1, D: 2, A: 3, E: 4, B: 5, 'F#': 6, 'C#': 7 }
-function fixKeySignature(bytes: Uint8Array, key?: string): Uint8Array {
+// A minor key's signature is its relative major's (SMF 1.0, meta event FF 59 02 sf mi: sf counts the
+// signature's sharps or flats, mi = 1 for minor), so C minor is three flats.
+function fixKeySignature(bytes: Uint8Array, key?: string, scale?: 'major' | 'minor'): Uint8Array {
   if (!key) return bytes
+  const sf = SHARPS_FLATS[key]! - (scale === 'minor' ? 3 : 0)
   for (let i = 0; i + 4 < bytes.length; i++) {
-    if (bytes[i] === 0xff && bytes[i + 1] === 0x59 && bytes[i + 2] === 0x02) bytes[i + 3] = SHARPS_FLATS[key]! & 0xff
+    if (bytes[i] === 0xff && bytes[i + 1] === 0x59 && bytes[i + 2] === 0x02) bytes[i + 3] = sf & 0xff
   }
   return bytes
 }
