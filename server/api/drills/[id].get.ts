@@ -4,7 +4,7 @@ import type { DrillView } from '../../../shared/types/drill-view'
 
 const Query = z.object({ assignmentId: z.coerce.number().int().positive().optional() })
 
-// GET /api/drills/:id → { id, ensembleId, ensembleName, role, document, targets, preselectedPart,
+// GET /api/drills/:id → { id, version, archivedAt, updatedAt, ensembleId, ensembleName, role, document, targets, preselectedPart,
 // openAssignments (the caller's, each with its part), limits (of a take upload) }
 export default defineEventHandler(async (event): Promise<DrillView> => {
   const user = await requireUser(event)
@@ -25,6 +25,9 @@ export default defineEventHandler(async (event): Promise<DrillView> => {
   }
   return {
     id: drill.id,
+    version: drill.version,
+    archivedAt: drill.archivedAt,
+    updatedAt: drill.updatedAt,
     ensembleId: drill.ensembleId,
     ensembleName: access.ensembleName,
     role: access.membership.role,
