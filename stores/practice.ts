@@ -1,3 +1,5 @@
+import type { ToneEvent } from '#shared/practice/mix'
+
 // Practice tones: every sound goes voice → master gain → limiter → speakers/headphones, so no
 // chord, however many parts, can reach full scale, and the default level is quiet.
 
@@ -8,6 +10,7 @@ export const PRACTICE_DEFAULT_VOLUME = 0.25
 /** A brick-wall-like limiter: fast attack, high ratio, threshold below full scale. */
 export const LIMITER_SETTINGS = { threshold: -10, knee: 0, ratio: 20, attack: 0.002, release: 0.2 } as const
 
+export type { ToneEvent }
 export type PracticeTimbre = 'soft' | 'sine' | 'bright'
 
 export const TIMBRE_LABELS: Record<PracticeTimbre, string> = {
@@ -44,11 +47,6 @@ export function buildOutputChain(ctx: BaseAudioContext, gain: number): { master:
   return { master, limiter }
 }
 
-/**
- * A tone event on a timeline: seconds from the start, length, frequencies sounding together and,
- * optionally, their relative levels (a player's own part louder than the others).
- */
-export interface ToneEvent { atS: number, durationS: number, hz: number[], weights?: number[] }
 
 /** A drone fades in and out over this long, and stops by itself after DRONE_MAX_S. */
 export const DRONE_FADE_S = 0.5

@@ -1,7 +1,7 @@
 // What the practice tones play for each mix of parts, a looped chord, and the drone pitches.
 import { describe, expect, it } from 'vitest'
 import { computeTargets } from '../../../shared/tuning/index'
-import { chordTones, drillEvents, loopEvents, OWN_PART_WEIGHT, rootDroneHz, tonicDroneHz } from '../../../utils/practice-mix'
+import { chordTones, drillEvents, loopEvents, OWN_PART_WEIGHT, rootDroneHz, tonicDroneHz } from '../../../shared/practice/mix'
 
 // C major then G7 over B (rootless), tuned just from each chord's root at A4 = 440 Hz.
 const targets = computeTargets({

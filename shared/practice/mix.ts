@@ -1,8 +1,13 @@
 // What the practice tones play: the drill's chords as tone events for a chosen mix of parts, a
 // looped chord, and the pitch of a drone. Plain functions (no audio), so they are tested directly.
-import type { TargetChord } from '../shared/tuning/index'
-import { midiToHz, parseKey, parsePitchClass } from '../shared/tuning/pitch'
-import type { ToneEvent } from '../stores/practice'
+import type { TargetChord } from '../tuning/index'
+import { midiToHz, parseKey, parsePitchClass } from '../tuning/pitch'
+
+/**
+ * A tone event on a timeline: seconds from the start, length, frequencies sounding together and,
+ * optionally, their relative levels (a player's own part louder than the others).
+ */
+export interface ToneEvent { atS: number, durationS: number, hz: number[], weights?: number[] }
 
 /**
  * all: every part at one level; with-me: every part, the player's own louder; without-me: the
