@@ -167,7 +167,7 @@ describe('writing a drill in the voicing grid', () => {
 
     await page.goto(`${app.url}/drills`)
     await page.getByLabel('Search drills').fill('four chords')
-    await expect.poll(() => page.getByRole('link', { name: /Four chords in C/ }).count()).toBe(1)
+    await expect.poll(() => page.getByRole('link', { name: 'Four chords in C, mine', exact: true }).count()).toBe(1)
     expect(await pageWidth(page)).toBe(390)
     await context.close()
   })
