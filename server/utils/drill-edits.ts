@@ -1,6 +1,7 @@
 import type { Knex } from 'knex'
 import { DrillDocument, parseSystem, type SystemOptions } from '../../shared/drill/schema'
-import type { DrillArchiveState, DrillConflict, DrillDefaults, DrillListItem } from '../../shared/types/drill'
+import type { DrillArchiveState, DrillConflict, DrillDefaults } from '../../shared/types/drill'
+import type { DrillListItem } from '../../shared/types/drill-view'
 import { loadDrill, saveDrill, type StoredDrill } from './drills'
 
 /** Characters LIKE treats specially, escaped so a search for "50%" finds "50%". */

@@ -2,8 +2,6 @@
 // (GET /api/drills/:id and the list rows live in drill-view.ts).
 import type { DrillDocument } from '../drill/schema'
 
-export type { DrillListItem } from './drill-view'
-
 /** 201 of POST /api/ensembles/:id/drills and of POST /api/drills/:id/duplicate. */
 export interface DrillCreated { id: number, version: number }
 

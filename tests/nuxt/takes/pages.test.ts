@@ -5,7 +5,7 @@ import { createError } from 'h3'
 import { computeTargets } from '#shared/tuning'
 // Imported up front: the pages are transformed while the file loads, not inside the test app's start-up.
 import DrillsPage from '~/pages/drills/index.vue'
-import type { DrillListItem } from '#shared/types/drill'
+import type { DrillListItem } from '#shared/types/drill-view'
 import TakePage from '~/pages/takes/[id].vue'
 import TakesPage from '~/pages/takes/index.vue'
 import DrillPage from '~/pages/drills/[id].vue'

@@ -1,5 +1,5 @@
 import { DrillListQuery } from '../../../../../shared/schemas/drill'
-import type { DrillListItem } from '../../../../../shared/types/drill'
+import type { DrillListItem } from '../../../../../shared/types/drill-view'
 
 // GET /api/ensembles/:id/drills?q=&status=active|archived|all → DrillListItem[] (members;
 // archived drills for directors only).
