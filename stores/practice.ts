@@ -1,3 +1,5 @@
+import type { ToneEvent } from '#shared/practice/mix'
+
 // Practice tones: every sound goes voice → master gain → limiter → speakers/headphones, so no
 // chord, however many parts, can reach full scale, and the default level is quiet.
 
@@ -8,6 +10,7 @@ export const PRACTICE_DEFAULT_VOLUME = 0.25
 /** A brick-wall-like limiter: fast attack, high ratio, threshold below full scale. */
 export const LIMITER_SETTINGS = { threshold: -10, knee: 0, ratio: 20, attack: 0.002, release: 0.2 } as const
 
+export type { ToneEvent }
 export type PracticeTimbre = 'soft' | 'sine' | 'bright'
 
 export const TIMBRE_LABELS: Record<PracticeTimbre, string> = {
@@ -44,8 +47,10 @@ export function buildOutputChain(ctx: BaseAudioContext, gain: number): { master:
   return { master, limiter }
 }
 
-/** A tone event on a timeline: seconds from the start, length, frequencies sounding together. */
-export interface ToneEvent { atS: number, durationS: number, hz: number[] }
+
+/** A drone fades in and out over this long, and stops by itself after DRONE_MAX_S. */
+export const DRONE_FADE_S = 0.5
+export const DRONE_MAX_S = 600
 
 interface Voice { osc: OscillatorNode, env: GainNode, endAt: number }
 
@@ -68,6 +73,7 @@ export const usePracticeStore = defineStore('practice', () => {
   const waves = new Map<PracticeTimbre, PeriodicWave>()
   const voices = new Set<Voice>()
   let clearTimer: ReturnType<typeof setTimeout> | null = null
+  let loopTimer: ReturnType<typeof setInterval> | null = null
 
   function loadSaved() {
     if (!import.meta.client) return
@@ -125,7 +131,7 @@ export const usePracticeStore = defineStore('practice', () => {
     return w
   }
 
-  function voice(c: AudioContext, hz: number, at: number, durationS: number, amp: number) {
+  function voice(c: AudioContext, hz: number, at: number, durationS: number, amp: number, fadeS = { in: ATTACK_S, out: RELEASE_S }) {
     if (!chain || !Number.isFinite(hz) || hz <= 0) return
     const osc = c.createOscillator()
     const w = wave(c, timbre.value)
@@ -133,10 +139,10 @@ export const usePracticeStore = defineStore('practice', () => {
     else osc.type = 'sine'
     osc.frequency.value = hz
     const env = c.createGain()
-    const end = at + Math.max(durationS, ATTACK_S + RELEASE_S)
+    const end = at + Math.max(durationS, fadeS.in + fadeS.out)
     env.gain.setValueAtTime(0, at)
-    env.gain.linearRampToValueAtTime(amp, at + ATTACK_S)
-    env.gain.setValueAtTime(amp, end - RELEASE_S)
+    env.gain.linearRampToValueAtTime(amp, at + fadeS.in)
+    env.gain.setValueAtTime(amp, end - fadeS.out)
     env.gain.linearRampToValueAtTime(0, end)
     osc.connect(env)
     env.connect(chain.master)
@@ -151,10 +157,11 @@ export const usePracticeStore = defineStore('practice', () => {
   }
 
   /** Schedules frequencies sounding together; each voice shares the headroom so a chord never sums past 0.9. */
-  function sound(c: AudioContext, hz: number[], at: number, durationS: number) {
-    const valid = hz.filter(f => Number.isFinite(f) && f > 0)
-    const amp = 0.9 / Math.max(1, valid.length)
-    for (const f of valid) voice(c, f, at, durationS, amp)
+  function sound(c: AudioContext, hz: number[], at: number, durationS: number, weights?: number[], fadeS?: { in: number, out: number }) {
+    const valid = hz.map((f, i) => ({ f, w: weights?.[i] ?? 1 }))
+      .filter(v => Number.isFinite(v.f) && v.f > 0 && Number.isFinite(v.w) && v.w > 0)
+    const total = valid.reduce((s, v) => s + v.w, 0)
+    for (const v of valid) voice(c, v.f, at, durationS, 0.9 * v.w / Math.max(1, total), fadeS)
   }
 
   function markActive(key: string | null, forS: number) {
@@ -165,6 +172,7 @@ export const usePracticeStore = defineStore('practice', () => {
 
   /** Stops every sounding and scheduled tone with a short fade (no click). */
   function stop() {
+    if (loopTimer) { clearInterval(loopTimer); loopTimer = null }
     if (ctx) {
       const now = ctx.currentTime
       for (const v of voices) {
@@ -195,11 +203,46 @@ export const usePracticeStore = defineStore('practice', () => {
     const start = c.currentTime + (opts.delayS ?? 0.05)
     let last = 0
     for (const e of events) {
-      sound(c, e.hz, start + e.atS, e.durationS)
+      sound(c, e.hz, start + e.atS, e.durationS, e.weights)
       last = Math.max(last, e.atS + e.durationS)
     }
     markActive(opts.key ?? null, last + (opts.delayS ?? 0.05))
     return start
+  }
+
+  /**
+   * Holds frequencies (a drone) until stop(), fading in and out over DRONE_FADE_S; it ends by
+   * itself after DRONE_MAX_S so a forgotten drone does not play all day.
+   */
+  async function drone(hz: number[], key: string): Promise<boolean> {
+    const c = await ready()
+    if (!c) return false
+    stop()
+    sound(c, hz, c.currentTime + 0.02, DRONE_MAX_S, undefined, { in: DRONE_FADE_S, out: DRONE_FADE_S })
+    markActive(key, DRONE_MAX_S)
+    return true
+  }
+
+  /**
+   * Repeats `events` every `periodS` seconds until stop(), scheduling about a second ahead (a timer
+   * alone would drift and stutter; the audio clock keeps the turns exact).
+   */
+  async function loop(events: ToneEvent[], periodS: number, key: string): Promise<boolean> {
+    const c = await ready()
+    if (!c || !(periodS > 0) || !events.length) return false
+    stop()
+    let next = c.currentTime + 0.05
+    const ahead = () => {
+      while (next < c.currentTime + 1.2) {
+        for (const e of events) sound(c, e.hz, next + e.atS, e.durationS, e.weights)
+        next += periodS
+      }
+    }
+    ahead()
+    loopTimer = setInterval(ahead, 250)
+    if (clearTimer) clearTimeout(clearTimer)
+    activeKey.value = key
+    return true
   }
 
   function clicks(c: AudioContext, beats: number, spb: number, start: number) {
@@ -237,7 +280,7 @@ export const usePracticeStore = defineStore('practice', () => {
     const firstChordAt = startAt + Math.max(0, Math.floor(beats)) * spb
     let last = 0
     for (const e of events) {
-      sound(c, e.hz, firstChordAt + e.atS, e.durationS)
+      sound(c, e.hz, firstChordAt + e.atS, e.durationS, e.weights)
       last = Math.max(last, e.atS + e.durationS)
     }
     markActive(key, firstChordAt - c.currentTime + last)
@@ -268,5 +311,5 @@ export const usePracticeStore = defineStore('practice', () => {
     return chain ? { gain: chain.master.gain.value, limiter: chain.limiter } : null
   }
 
-  return { volume, timbre, holdS, activeKey, error, loadSaved, ready, setVolume, play, playSequence, countIn, stop, now, dispose, inspect }
+  return { volume, timbre, holdS, activeKey, error, loadSaved, ready, setVolume, play, playSequence, countIn, drone, loop, stop, now, dispose, inspect }
 })

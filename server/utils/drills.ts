@@ -23,6 +23,7 @@ export interface StoredDrill {
   title: string
   version: number
   archivedAt: string | null
+  updatedAt: string
   document: DrillDocument
 }
 
@@ -84,6 +85,7 @@ export async function saveDrill (db: Knex, ensembleId: number, input: DrillInput
       const [row] = await trx('drill_parts').insert({ drill_id: id, position, name: p.name, instrument: p.instrument ?? null }).returning('id')
       partIds.set(p.name, typeof row === 'object' ? row.id : row)
     }
+    await trx('drill_versions').insert({ drill_id: id, version, document: columns.document, created_by: userId, created_at: now })
     let startBeat = 0
     for (const [position, c] of doc.chords.entries()) {
       const [row] = await trx('drill_chords').insert({ drill_id: id, position, start_beat: startBeat, beats: c.beats, symbol: c.symbol ?? null }).returning('id')
@@ -105,7 +107,7 @@ export async function saveDrill (db: Knex, ensembleId: number, input: DrillInput
 
 /** A drill with its parsed document, or null. */
 export async function loadDrill (db: Knex, id: number): Promise<StoredDrill | null> {
-  const row = await db('drills').where({ id }).first('id', 'ensemble_id', 'title', 'version', 'archived_at', 'document')
+  const row = await db('drills').where({ id }).first('id', 'ensemble_id', 'title', 'version', 'archived_at', 'updated_at', 'document')
   if (!row) return null
   return {
     id: row.id,
@@ -113,6 +115,7 @@ export async function loadDrill (db: Knex, id: number): Promise<StoredDrill | nu
     title: row.title,
     version: row.version,
     archivedAt: row.archived_at,
+    updatedAt: row.updated_at,
     document: DrillDocument.parse(JSON.parse(row.document)),
   }
 }
@@ -132,28 +135,6 @@ export async function preselectedPart (db: Knex, access: DrillAccess, assignment
   }
   const pick = partForSection(parts, assignmentPart, sectionName)
   return pick && parts.includes(pick) ? pick : null
-}
-
-/** The drills of an ensemble (archived ones left out), oldest first. */
-export async function listEnsembleDrills (db: Knex, ensembleId: number): Promise<DrillListItem[]> {
-  const rows = await db('drills').where({ ensemble_id: ensembleId }).whereNull('archived_at')
-    .orderBy([{ column: 'created_at', order: 'asc' }, { column: 'id', order: 'asc' }])
-    .select('id', 'document', 'created_at')
-  return rows.map((r: Record<string, any>) => {
-    const d = JSON.parse(r.document) as DrillDocument
-    return {
-      id: r.id as number,
-      title: d.title,
-      key: d.key,
-      tempo: d.tempo,
-      a4: d.a4,
-      system: d.system,
-      tolerance: d.tolerance,
-      parts: d.parts.map(p => ({ name: p.name, instrument: p.instrument ?? null })),
-      chords: d.chords.length,
-      createdAt: r.created_at as string,
-    }
-  })
 }
 
 /** Largest drill file taken by the import. */

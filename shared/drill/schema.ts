@@ -97,6 +97,10 @@ export const DrillDocument = z.object({
     }
   })
   drill.chords.forEach((c, i) => {
+    if (Object.keys(c.notes).length === 0) {
+      ctx.addIssue({ code: 'custom', path: ['chords', i, 'notes'], message: `chord ${i + 1} is empty: give every part a note or a rest` })
+      return
+    }
     for (const name of names) {
       if (!(name in c.notes)) ctx.addIssue({ code: 'custom', path: ['chords', i, 'notes', name], message: `chord ${i + 1} has no note or rest for part "${name}"` })
     }

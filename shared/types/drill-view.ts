@@ -17,6 +17,10 @@ export interface DrillOpenAssignment {
 /** GET /api/drills/:id */
 export interface DrillView {
   id: number
+  /** Saved version of the document; PUT /api/drills/:id sends it back. */
+  version: number
+  archivedAt: string | null
+  updatedAt: string
   ensembleId: number
   ensembleName: string
   role: EnsembleRole
@@ -40,7 +44,12 @@ export interface DrillListItem {
   tolerance: number
   parts: { name: string, instrument: string | null }[]
   chords: number
+  version: number
+  /** Takes recorded against the drill (kept when it is archived). */
+  takes: number
   createdAt: string
+  updatedAt: string
+  archivedAt: string | null
 }
 
 /** 201 of POST /api/ensembles/:id/drills/import */

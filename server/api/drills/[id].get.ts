@@ -5,7 +5,7 @@ import { Id } from '../../../shared/schemas/id'
 
 const Query = z.object({ assignmentId: Id.optional() })
 
-// GET /api/drills/:id → { id, ensembleId, ensembleName, role, document, targets, preselectedPart,
+// GET /api/drills/:id → { id, version, archivedAt, updatedAt, ensembleId, ensembleName, role, document, targets, preselectedPart,
 // openAssignments (the caller's, each with its part), limits (of a take upload) }
 export default defineEventHandler(async (event): Promise<DrillView> => {
   const user = await requireUser(event)
@@ -26,6 +26,9 @@ export default defineEventHandler(async (event): Promise<DrillView> => {
   }
   return {
     id: drill.id,
+    version: drill.version,
+    archivedAt: drill.archivedAt,
+    updatedAt: drill.updatedAt,
     ensembleId: drill.ensembleId,
     ensembleName: access.ensembleName,
     role: access.membership.role,

@@ -5,6 +5,7 @@ import { createError } from 'h3'
 import { computeTargets } from '#shared/tuning'
 // Imported up front: the pages are transformed while the file loads, not inside the test app's start-up.
 import DrillsPage from '~/pages/drills/index.vue'
+import type { DrillListItem } from '#shared/types/drill-view'
 import TakePage from '~/pages/takes/[id].vue'
 import TakesPage from '~/pages/takes/index.vue'
 import DrillPage from '~/pages/drills/[id].vue'
@@ -19,7 +20,8 @@ const ensembles = [
 const drillRow = {
   id: 5, title: 'Held triads in E♭', key: 'Eb major', tempo: 60, a4: 440, system: { name: 'just-root', seventh: 'harmonic', fraction: '1/4' },
   tolerance: 8, parts: [{ name: 'Soprano', instrument: 'voice-soprano' }, { name: 'Alto', instrument: null }], chords: 6, createdAt: '2026-03-01T10:00:00Z',
-}
+  updatedAt: '2026-03-02T10:00:00Z', version: 2, takes: 3, archivedAt: null,
+} satisfies DrillListItem
 // A signed-in player, so the page guard lets the pages through.
 registerEndpoint('/api/_auth/session', () => ({ user: { id: 4, email: 'ada@example.org', name: 'Ada Example', siteRole: null }, loggedInAt: Date.now() }))
 beforeAll(async () => {

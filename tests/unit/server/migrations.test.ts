@@ -9,7 +9,7 @@ import { MIGRATIONS, migrateLatest, migrationSource } from '../../../server/data
 const DIR = join(import.meta.dirname, '../../../migrations')
 const DOMAIN_TABLES = [
   'users', 'ensembles', 'sections', 'memberships', 'invitations', 'password_resets', 'revoked_sessions',
-  'drills', 'drill_parts', 'drill_chords', 'drill_notes', 'assignments',
+  'drills', 'drill_versions', 'drill_parts', 'drill_chords', 'drill_notes', 'assignments',
   'takes', 'analyses', 'hold_results', 'reviews', 'review_notes', 'jobs', 'audit_log',
 ]
 

@@ -63,6 +63,11 @@ describe('drill documents', () => {
     expect(e.message).toMatch(/chords\.0\.notes\.Cornet: chord 1, part "Cornet": "H5" is not a note name/)
   })
 
+  it('an empty chord is named once, with what to do', () => {
+    const e = issueOf({ ...good, chords: [good.chords[0], { beats: 2, notes: {} }] })
+    expect(e.issues).toEqual([{ path: 'chords.1.notes', message: 'chord 2 is empty: give every part a note or a rest' }])
+  })
+
   it('a bad .scl inside a drill reports its line', () => {
     const e = issueOf({ ...good, system: { name: 'scala', scala: 'x\n 2\n 3/2\n' } })
     expect(e.message).toMatch(/line 2 declares 2 pitches but only 1 follow/)
