@@ -238,6 +238,26 @@ describe('invitations', () => {
     expect(open.items.map((i: { email: string }) => i.email)).not.toContain('revoked.one@example.org')
   })
 
+  it('asks an existing account to sign in, refuses another account, and adds the membership once signed in', async () => {
+    const other = accounts.find(a => a.ensemble !== choir.ensemble && accounts.every(o => o.email !== a.email || o.ensemble !== choir.ensemble) && a.role !== 'site admin')!
+    const before = await mailCount(app, cookies[admin]!, other.email)
+    expect((await app.fetch(`/api/ensembles/${id}/invitations`, json('POST', { email: other.email, role: 'player' }, director()))).status).toBe(201)
+    const token = linksIn((await latestMailTo(app, cookies[admin]!, other.email, before)).text)[0]!.split('/').pop()!
+    expect(await (await app.fetch(`/api/invitations/${token}`)).json()).toMatchObject({ email: other.email, hasAccount: true })
+    // Signed out: the account exists, so a name and password cannot take it over.
+    const anon = await errorOf(await app.fetch(`/api/invitations/${token}/accept`, json('POST', { name: 'Someone', password: 'a takeover attempt' })))
+    expect(anon).toMatchObject({ status: 401, data: { code: 'sign_in_required' } })
+    const wrong = await errorOf(await app.fetch(`/api/invitations/${token}/accept`, json('POST', {}, cookies[onlyPlayer.email])))
+    expect(wrong).toMatchObject({ status: 403, data: { code: 'wrong_account' } })
+    const mine = await app.login(other.email)
+    const ok = await app.fetch(`/api/invitations/${token}/accept`, json('POST', {}, mine))
+    expect(ok.status).toBe(200)
+    expect((await ok.json()).ensembleId).toBe(id)
+    const names = (await (await app.fetch('/api/ensembles', { cookie: mine })).json()).map((e: { name: string }) => e.name)
+    expect(names).toEqual(expect.arrayContaining([choir.ensemble, other.ensemble]))
+    expect((await app.fetch(`/api/invitations/${token}/accept`, json('POST', {}, mine))).status).toBe(410)
+  })
+
   it('stores only a hash of the token', async () => {
     const rows = withDb(app, db => db.prepare('select token_hash from invitations').all() as { token_hash: string }[])
     // SHA-256 digests are 32 bytes: 64 hex digits (FIPS 180-4).
