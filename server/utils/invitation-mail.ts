@@ -1,6 +1,6 @@
 import type { Knex } from 'knex'
 import type { MemberRole } from '../../shared/types/ensemble'
-import type { IssuedInvitation } from './invitations'
+import type { IssuedInvitation } from './ensemble-invitations'
 import type { OutgoingMail } from './mail'
 import { sendMail } from './mail'
 
@@ -13,12 +13,12 @@ export function invitationTtlMs (): number {
 }
 
 /** The link an invitation mail carries: {baseUrl}/invitations/{token}. */
-export function invitationLink (token: string): string {
+export function invitationUrl (token: string): string {
   return `${String(useRuntimeConfig().baseUrl).replace(/\/+$/, '')}/invitations/${encodeURIComponent(token)}`
 }
 
 /** The invitation message: plain text holding exactly one link. */
-export function invitationMail (to: string, opts: { name: string | null, ensemble: string, inviter: string, role: MemberRole, section: string | null, link: string, expiresAt: string }): OutgoingMail {
+export function ensembleInvitationMail (to: string, opts: { name: string | null, ensemble: string, inviter: string, role: MemberRole, section: string | null, link: string, expiresAt: string }): OutgoingMail {
   const until = new Date(opts.expiresAt).toUTCString().replace(/:\d\d GMT$/, ' UTC')
   const where = opts.section ? ` in the ${opts.section} section` : ''
   const text = [
@@ -42,7 +42,7 @@ export async function mailInvitations (db: Knex, ensembleId: number, inviter: st
   for (const inv of issued) {
     try {
       const row = await db('invitations as i').leftJoin('sections as s', 's.id', 'i.section_id').where('i.id', inv.id).first('i.role', 's.name as section')
-      await sendMail(invitationMail(inv.email, { name: inv.name, ensemble, inviter, role: row.role, section: row.section ?? null, link: invitationLink(inv.token), expiresAt: inv.expiresAt }))
+      await sendMail(ensembleInvitationMail(inv.email, { name: inv.name, ensemble, inviter, role: row.role, section: row.section ?? null, link: invitationUrl(inv.token), expiresAt: inv.expiresAt }))
     } catch (err) {
       failed++
       console.error(`[mail] invitation ${inv.id} not sent: ${(err as Error).message}`)

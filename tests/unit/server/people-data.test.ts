@@ -5,7 +5,7 @@ import { createKnex } from '../../../server/database/knex'
 import { migrateLatest } from '../../../server/database/migrations'
 import { mergeSections, removeSection, reorderSections, createSection, updateSection } from '../../../server/utils/sections'
 import { listMembers, removeMember, updateMember } from '../../../server/utils/members'
-import { acceptInvitation, createInvitation, findInvitationByToken, resendInvitation } from '../../../server/utils/invitations'
+import { acceptInvitation, inviteToEnsemble, findInvitationByToken, resendInvitation } from '../../../server/utils/ensemble-invitations'
 import { mergeSystem, storedSystem } from '../../../server/utils/ensemble-settings'
 import { hashToken } from '../../../server/utils/accounts'
 
@@ -104,7 +104,7 @@ describe('members', () => {
 
 describe('invitations', () => {
   it('stores the token as its SHA-256 hash and spends it on acceptance', async () => {
-    const r = await createInvitation(db, ensembleId, actor, { email: 'New@Example.org ', role: 'player', sectionId: sections.Tenor! }, 7 * 86400e3)
+    const r = await inviteToEnsemble(db, ensembleId, actor, { email: 'New@Example.org ', role: 'player', sectionId: sections.Tenor! }, 7 * 86400e3)
     expect(r.ok).toBe(true)
     if (!r.ok) return
     const row = await db('invitations').where({ id: r.invitation.id }).first()
@@ -120,12 +120,12 @@ describe('invitations', () => {
     expect(acc.ok).toBe(true)
     expect(await acceptInvitation(db, r.invitation.id, { name: 'Again', passwordHash: 'hash' }, null)).toEqual({ ok: false, code: 'gone' })
     expect((await findInvitationByToken(db, r.invitation.token))?.status).toBe('accepted')
-    expect(await createInvitation(db, ensembleId, actor, { email: 'new@example.org', role: 'player', sectionId: null }, 1000)).toEqual({ ok: false, code: 'already_member' })
+    expect(await inviteToEnsemble(db, ensembleId, actor, { email: 'new@example.org', role: 'player', sectionId: null }, 1000)).toEqual({ ok: false, code: 'already_member' })
   })
 
   it('replaces an open invitation to the same address, and a resend kills the old link', async () => {
-    const a = await createInvitation(db, ensembleId, actor, { email: 'x@example.org', role: 'player', sectionId: null }, 86400e3)
-    const b = await createInvitation(db, ensembleId, actor, { email: 'x@example.org', role: 'section_leader', sectionId: null }, 86400e3)
+    const a = await inviteToEnsemble(db, ensembleId, actor, { email: 'x@example.org', role: 'player', sectionId: null }, 86400e3)
+    const b = await inviteToEnsemble(db, ensembleId, actor, { email: 'x@example.org', role: 'section_leader', sectionId: null }, 86400e3)
     if (!a.ok || !b.ok) throw new Error('not created')
     expect((await findInvitationByToken(db, a.invitation.token))?.status).toBe('revoked')
     const again = await resendInvitation(db, ensembleId, b.invitation.id, actor, 86400e3)

@@ -8,7 +8,7 @@ export default defineEventHandler(async (event) => {
   const db = useDb()
   await requireEnsembleRole(db, user, id, 'director')
   const body = await readJsonBody(event, InvitationCreate)
-  const r = await createInvitation(db, id, actorOf(event, user), { email: body.email, role: body.role, sectionId: body.sectionId ?? null, name: body.name }, invitationTtlMs())
+  const r = await inviteToEnsemble(db, id, actorOf(event, user), { email: body.email, role: body.role, sectionId: body.sectionId ?? null, name: body.name }, invitationTtlMs())
   if (!r.ok && r.code === 'already_member') throw apiError(409, 'already_member', 'This address is already a member of the ensemble', { issues: [{ path: ['email'], message: 'Already a member of this ensemble', code: 'already_member' }] })
   if (!r.ok) throw apiError(400, 'invalid_input', 'Invalid input', { issues: [{ path: ['sectionId'], message: 'That section is not in this ensemble', code: 'section_not_found' }] })
   if (await mailInvitations(db, id, user.name, [r.invitation])) {

@@ -10,7 +10,7 @@ interface InvitationRow {
   accepted_user_id: number | null, revoked_at: string | null, created_at: string
 }
 
-export interface NewInvitation { email: string, role: MemberRole, sectionId: number | null, name?: string | null }
+export interface InvitationRequest { email: string, role: MemberRole, sectionId: number | null, name?: string | null }
 
 /** A created or re-sent invitation and the token to mail (only its hash is stored). */
 export interface IssuedInvitation extends InvitationCreated { token: string, name: string | null }
@@ -36,7 +36,7 @@ export async function sectionInEnsemble (db: Knex, ensembleId: number, sectionId
  * Stores an invitation valid for `ttlMs` (inside the caller's transaction when given one). An open
  * invitation to the same address is revoked: one live link per address and ensemble.
  */
-export async function insertInvitation (trx: Knex, ensembleId: number, actor: Actor, inv: NewInvitation, ttlMs: number): Promise<IssuedInvitation> {
+export async function insertInvitation (trx: Knex, ensembleId: number, actor: Actor, inv: InvitationRequest, ttlMs: number): Promise<IssuedInvitation> {
   const email = normaliseEmail(inv.email)
   const now = new Date()
   const nowIso = now.toISOString()
@@ -57,7 +57,7 @@ export async function insertInvitation (trx: Knex, ensembleId: number, actor: Ac
 }
 
 /** Creates one invitation; `already_member` when the address is in the ensemble, `section_not_found` for another ensemble's section. */
-export async function createInvitation (db: Knex, ensembleId: number, actor: Actor, inv: NewInvitation, ttlMs: number):
+export async function inviteToEnsemble (db: Knex, ensembleId: number, actor: Actor, inv: InvitationRequest, ttlMs: number):
   Promise<{ ok: true, invitation: IssuedInvitation } | { ok: false, code: 'already_member' | 'section_not_found' }> {
   return db.transaction(async (trx) => {
     if (inv.sectionId != null && !await sectionInEnsemble(trx, ensembleId, inv.sectionId)) return { ok: false, code: 'section_not_found' }
