@@ -258,6 +258,18 @@ describe('invitations', () => {
     expect((await app.fetch(`/api/invitations/${token}/accept`, json('POST', {}, mine))).status).toBe(410)
   })
 
+  it('treats a cookie that no longer signs anyone in as signed out', async () => {
+    const email = 'stale.cookie@example.org'
+    const before = await mailCount(app, cookies[admin]!, email)
+    await app.fetch(`/api/ensembles/${id}/invitations`, json('POST', { email, role: 'player' }, director()))
+    const token = linksIn((await latestMailTo(app, cookies[admin]!, email, before)).text)[0]!.split('/').pop()!
+    const old = await app.login(leader.email)
+    expect((await app.fetch('/api/auth/logout', { method: 'POST', cookie: old })).status).toBeLessThan(300)
+    const r = await app.fetch(`/api/invitations/${token}/accept`, json('POST', { name: 'Stale Cookie', password: 'a long enough password' }, old))
+    expect(r.status).toBe(200)
+    expect((await r.json()).user.email).toBe(email)
+  })
+
   it('stores only a hash of the token', async () => {
     const rows = withDb(app, db => db.prepare('select token_hash from invitations').all() as { token_hash: string }[])
     // SHA-256 digests are 32 bytes: 64 hex digits (FIPS 180-4).

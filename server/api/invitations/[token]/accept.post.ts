@@ -9,8 +9,9 @@ export default defineEventHandler(async (event) => {
   const found = await findInvitationByToken(db, token)
   if (!found) throw apiError(404, 'not_found', 'This invitation link is not valid')
   if (found.status !== 'open') throw invitationGone(found.status)
+  // A cookie that no longer signs anyone in (expired, signed out elsewhere) counts as signed out.
   const signedIn = Boolean((await getUserSession(event)).user)
-  const user = signedIn ? await requireUser(event) : null
+  const user = signedIn ? await requireUser(event).catch(() => null) : null
   if (found.disabled) throw apiError(403, 'account_disabled', 'This account is disabled')
   if (user && user.email !== found.row.email) throw apiError(403, 'wrong_account', `This invitation is for ${found.row.email}: sign out and open the link again`)
   if (!user && found.hasPassword) throw apiError(401, 'sign_in_required', `Sign in as ${found.row.email} to accept`)
