@@ -1,6 +1,7 @@
 import type { H3Event } from 'h3'
 import type { Knex } from 'knex'
-import type { EnsembleRole, Membership, SessionUser } from './auth'
+import type { EnsembleRole, SessionUser } from '../../shared/types/user'
+import type { Membership } from './auth'
 import { requireMembership, requireRole } from './auth'
 import type { Actor } from './ensemble-settings'
 import { clientAddress } from './rate-limit'

@@ -1,11 +1,13 @@
 // Response shapes of the ensemble, section, member and invitation routes (server and pages share them).
 import type { SystemName, SystemOptions } from '../drill/schema'
+import type { EnsembleRole } from './user'
 
 export const ENSEMBLE_KINDS = ['choir', 'brass_band', 'wind_band', 'mixed'] as const
 export type EnsembleKind = (typeof ENSEMBLE_KINDS)[number]
 
-export const MEMBER_ROLES = ['director', 'section_leader', 'player'] as const
-export type MemberRole = (typeof MEMBER_ROLES)[number]
+export const MEMBER_ROLES = ['director', 'section_leader', 'player'] as const satisfies readonly EnsembleRole[]
+/** A member's role (the same values as the session's EnsembleRole). */
+export type MemberRole = EnsembleRole
 
 /** Which pitch a member reads their part in. */
 export const READINGS = ['concert', 'written'] as const
