@@ -80,6 +80,10 @@ export default defineNuxtConfig({
       maxFailuresPerAddress: 30,
       windowS: 900,
     },
+    invitations: {
+      /** Days an invitation link stays valid. */
+      ttlDays: 7,
+    },
     /** Largest JSON body in bytes. */
     maxJsonBytes: 1024 * 1024,
     /** Public address used in mailed links. */

@@ -1,10 +1,11 @@
+import type { EnsembleKind } from '#shared/types/ensemble'
 import type { EnsembleRole } from '#shared/types/user'
 
 /** One row of GET /api/ensembles: an ensemble and the caller's role in it. */
 export interface MyEnsemble {
   id: number
   name: string
-  kind: 'choir' | 'band' | 'ensemble'
+  kind: EnsembleKind
   role: EnsembleRole | null
   sectionCount: number
   memberCount: number

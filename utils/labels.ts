@@ -15,8 +15,9 @@ export function roleLabel(role: string | null | undefined): string {
 export function kindLabel(kind: string | null | undefined): string {
   switch (kind) {
     case 'choir': return 'Choir'
-    case 'band': return 'Band'
-    case 'ensemble': return 'Ensemble'
+    case 'brass_band': return 'Brass band'
+    case 'wind_band': return 'Wind band'
+    case 'mixed': return 'Mixed ensemble'
     default: return kind ?? '—'
   }
 }

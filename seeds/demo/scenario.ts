@@ -62,7 +62,7 @@ export interface DemoTake {
 export interface DemoEnsemble {
   key: string
   name: string
-  kind: 'choir' | 'band' | 'ensemble'
+  kind: 'choir' | 'brass_band' | 'wind_band' | 'mixed'
   description: string
   a4: number
   sections: DemoSection[]
@@ -132,7 +132,7 @@ export const ENSEMBLES: DemoEnsemble[] = [
   {
     key: 'brass',
     name: 'Copperfield Quarry Brass',
-    kind: 'band',
+    kind: 'brass_band',
     description: 'A ten-piece brass ensemble from the quarry villages; treble-clef brass and concert-pitch trombone.',
     a4: 440,
     sections: [

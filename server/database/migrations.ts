@@ -7,9 +7,10 @@ import * as m002 from '../../migrations/002_drills_and_assignments'
 import * as m003 from '../../migrations/003_takes_and_analyses'
 import * as m004 from '../../migrations/004_reviews'
 import * as m005 from '../../migrations/005_jobs_and_audit'
+import * as m006 from '../../migrations/006_people_settings'
 import * as m008 from '../../migrations/008_drill_versions'
 
-interface Migration { up: (knex: Knex) => Promise<void>, down: (knex: Knex) => Promise<void> }
+interface Migration { up: (knex: Knex) => Promise<void>, down: (knex: Knex) => Promise<void>, config?: { transaction?: boolean } }
 
 export const MIGRATIONS: Record<string, Migration> = {
   '001_people_and_ensembles.ts': m001,
@@ -17,6 +18,7 @@ export const MIGRATIONS: Record<string, Migration> = {
   '003_takes_and_analyses.ts': m003,
   '004_reviews.ts': m004,
   '005_jobs_and_audit.ts': m005,
+  '006_people_settings.ts': m006,
   '008_drill_versions.ts': m008,
 }
 

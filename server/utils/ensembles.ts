@@ -1,7 +1,6 @@
 import type { Knex } from 'knex'
 import type { EnsembleRole, SessionUser } from '../../shared/types/user'
-
-export type EnsembleKind = 'choir' | 'band' | 'ensemble'
+import type { EnsembleKind } from '../../shared/types/ensemble'
 
 export interface EnsembleListItem {
   id: number

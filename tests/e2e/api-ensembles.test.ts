@@ -54,7 +54,7 @@ describe('GET /api/ensembles', () => {
     expect(list.map(e => e.name).sort()).toEqual(ensembleNames().sort())
     for (const e of list) {
       expect(Object.keys(e).sort()).toEqual(['archived', 'id', 'kind', 'memberCount', 'name', 'role', 'sectionCount'])
-      expect(['choir', 'band', 'ensemble']).toContain(e.kind)
+      expect(['choir', 'brass_band', 'wind_band', 'mixed']).toContain(e.kind)
       expect(e.archived).toBe(false)
       const ms = members().filter(r => r.ensemble === e.name)
       expect(e.memberCount).toBe(ms.length)

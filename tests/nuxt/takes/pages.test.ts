@@ -14,7 +14,7 @@ import NewTakePage from '~/pages/takes/new.vue'
 // Invented demo data (the contract's shapes); the check values are the trade's, noted beside them.
 const ensembles = [
   { id: 1, name: 'Harbour Singers', kind: 'choir', role: 'director', sectionCount: 4, memberCount: 24, archived: false },
-  { id: 2, name: 'Quay Brass', kind: 'band', role: 'player', sectionCount: 5, memberCount: 20, archived: false },
+  { id: 2, name: 'Quay Brass', kind: 'brass_band', role: 'player', sectionCount: 5, memberCount: 20, archived: false },
   { id: 3, name: 'Old Choir', kind: 'choir', role: 'player', sectionCount: 2, memberCount: 8, archived: true },
 ]
 const drillRow = {

@@ -49,7 +49,7 @@ describe('demo seed', () => {
   })
 
   it('has a choir and a band with transposing instruments', async () => {
-    expect((await db('ensembles').pluck('kind')).sort()).toEqual(['band', 'choir'])
+    expect((await db('ensembles').pluck('kind')).sort()).toEqual(['brass_band', 'choir'])
     const instruments = await db('drill_parts').distinct('instrument').pluck('instrument')
     expect(instruments).toEqual(expect.arrayContaining(['cornet-bb', 'tenor-horn-eb', 'baritone-bb-treble', 'trombone', 'eb-bass-treble', 'bb-bass-treble']))
   })

@@ -72,4 +72,22 @@ describe('migrations', () => {
     await expect(db('analyses').insert(analysis(true))).rejects.toThrow(/UNIQUE/) // one current analysis per take
     await expect(db('ensembles').where({ id: e.id }).delete()).rejects.toThrow(/FOREIGN KEY/) // takes are never lost by cascade
   })
+
+  it('rebuilds ensembles with the new kinds and keeps every row that points at them', async () => {
+    await db.migrate.up({ migrationSource, name: '001_people_and_ensembles.ts' })
+    for (let i = 0; i < 4; i++) await db.migrate.up({ migrationSource })
+    const [u] = await db('users').insert({ email: 'd@example.org', name: 'D' }).returning('id')
+    const rows = await db('ensembles').insert([{ name: 'Choir', kind: 'choir' }, { name: 'Band', kind: 'band' }, { name: 'Other', kind: 'ensemble' }]).returning('id')
+    const [s] = await db('sections').insert({ ensemble_id: rows[1].id, name: 'Cornet' }).returning('id')
+    await db('memberships').insert({ ensemble_id: rows[1].id, user_id: u.id, role: 'director', section_id: s.id })
+    expect(await migrateLatest(db)).toContain('006_people_settings.ts')
+    expect(await db('ensembles').orderBy('id').pluck('kind')).toEqual(['choir', 'brass_band', 'mixed'])
+    expect(await db('memberships').where({ ensemble_id: rows[1].id }).first()).toMatchObject({ user_id: u.id, section_id: s.id, reads: 'written', instrument: null })
+    expect((await db.raw('pragma foreign_keys') as { foreign_keys: number }[])[0]!.foreign_keys).toBe(1)
+    await expect(db('ensembles').insert({ name: 'X', kind: 'band' })).rejects.toThrow(/CHECK/)
+    // Deleting the ensemble still cascades to its sections (the references survived the rebuild).
+    await db('memberships').delete()
+    await db('ensembles').where({ id: rows[1].id }).delete()
+    expect(await db('sections').count({ n: '*' })).toEqual([{ n: 0 }])
+  })
 })
