@@ -7,6 +7,7 @@ import * as m002 from '../../migrations/002_drills_and_assignments'
 import * as m003 from '../../migrations/003_takes_and_analyses'
 import * as m004 from '../../migrations/004_reviews'
 import * as m005 from '../../migrations/005_jobs_and_audit'
+import * as m007 from '../../migrations/007_accounts_and_admin'
 
 interface Migration { up: (knex: Knex) => Promise<void>, down: (knex: Knex) => Promise<void> }
 
@@ -16,6 +17,7 @@ export const MIGRATIONS: Record<string, Migration> = {
   '003_takes_and_analyses.ts': m003,
   '004_reviews.ts': m004,
   '005_jobs_and_audit.ts': m005,
+  '007_accounts_and_admin.ts': m007,
 }
 
 /** Knex migration source over MIGRATIONS (pass as `migrationSource` to migrate.latest()). */
