@@ -32,8 +32,21 @@ async function signedIn (email: string, password = demoPassword(), width = 390, 
 
 /** The page is laid out no wider than the phone's screen (no sideways scrolling of the page). */
 async function fitsScreen (page: Page) {
-  const { scroll, view } = await page.evaluate(() => ({ scroll: document.documentElement.scrollWidth, view: window.innerWidth }))
-  expect(scroll).toBe(view)
+  const { scroll, view, wide } = await page.evaluate(() => {
+    const view = window.innerWidth
+    // What sticks out, for the failure message: elements past the right edge outside any scroll box.
+    const clipped = (el: Element | null): boolean => {
+      for (let p = el?.parentElement; p; p = p.parentElement) {
+        if (['auto', 'scroll', 'hidden'].includes(getComputedStyle(p).overflowX)) return true
+      }
+      return false
+    }
+    const wide = [...document.querySelectorAll('body *')]
+      .filter(el => el.getBoundingClientRect().right > view + 1 && !clipped(el))
+      .slice(0, 3).map(el => el.outerHTML.slice(0, 160))
+    return { scroll: document.documentElement.scrollWidth, view, wide }
+  })
+  expect(scroll, `wider than the screen: ${wide.join(' | ')}`).toBe(view)
 }
 const focusedLabel = (page: Page) => page.evaluate(() => {
   const el = document.activeElement as HTMLElement | null
@@ -128,9 +141,10 @@ describe('admin area', () => {
     await page.getByText('Choose what kind of ensemble it is').waitFor()
     expect(await focusedLabel(page)).toBe('Name')
 
-    await page.getByLabel('Name', { exact: true }).fill('Saltmarsh Chamber Choir')
-    await page.getByLabel('Kind').selectOption('choir')
-    await page.getByLabel('First director\'s e-mail').fill('not an address')
+    const form = page.getByRole('form', { name: 'New ensemble' })
+    await form.getByLabel('Name', { exact: true }).fill('Saltmarsh Chamber Choir')
+    await form.getByLabel('Kind').selectOption('choir')
+    await form.getByLabel('First director\'s e-mail').fill('not an address')
     await page.getByRole('button', { name: 'Create and invite' }).click()
     await page.getByText(/Enter an e-mail address/).waitFor()
     expect(await focusedLabel(page)).toBe('First director\'s e-mail')
