@@ -19,15 +19,21 @@ afterAll(async () => {
   await app?.stop()
 })
 
+/** A phone-sized page signed in through the API (the sign-in form has its own browser test). */
 async function signedIn (email: string, password = demoPassword(), width = 390, height = 844): Promise<Page> {
   const context = await browser.newContext({ viewport: { width, height } })
-  const page = await context.newPage()
-  await page.goto(`${app.url}/login`)
-  await page.getByLabel('E-mail').fill(email)
-  await page.getByLabel('Password').fill(password)
-  await page.getByLabel('Password').press('Enter')
-  await page.waitForURL(u => !u.pathname.startsWith('/login'))
-  return page
+  const header = await app.login(email, password)
+  await context.addCookies(header.split('; ').map((c) => {
+    const i = c.indexOf('=')
+    return { name: c.slice(0, i), value: c.slice(i + 1), url: app.url }
+  }))
+  return context.newPage()
+}
+
+/** Opens a page and waits until Vue has taken it over (before that a click submits natively). */
+async function open (page: Page, path: string) {
+  await page.goto(`${app.url}${path}`)
+  await page.waitForFunction(() => Boolean((document.querySelector('#__nuxt') as { __vue_app__?: unknown } | null)?.__vue_app__))
 }
 
 /** The page is laid out no wider than the phone's screen (no sideways scrolling of the page). */
@@ -57,7 +63,7 @@ describe('account page', () => {
   it('saves the profile, and changes the password with a clear error first', async () => {
     const email = players[0]!.email
     const page = await signedIn(email)
-    await page.goto(`${app.url}/account`)
+    await open(page, '/account')
     await page.getByRole('heading', { name: 'Your account' }).waitFor()
     await fitsScreen(page)
 
@@ -96,7 +102,7 @@ describe('account page', () => {
 describe('admin area', () => {
   it('is closed to anyone but a site admin', async () => {
     const page = await signedIn(accounts.find(a => a.role === 'director')!.email)
-    await page.goto(`${app.url}/admin`)
+    await open(page, '/admin')
     await page.getByText('For site admins only').waitFor()
     expect(await page.getByRole('link', { name: 'Admin', exact: true }).count()).toBe(0)
     await page.context().close()
@@ -105,12 +111,14 @@ describe('admin area', () => {
   it('finds a user, disables them after a confirmation and restores them, on a phone', async () => {
     const target = players[1]!
     const page = await signedIn(adminEmail)
-    await page.goto(`${app.url}/admin`)
+    await open(page, '/admin')
     await page.getByRole('heading', { name: 'Users' }).waitFor()
     await fitsScreen(page)
     await page.getByLabel('Name or e-mail').fill(target.email)
+    const searched = page.waitForResponse(r => r.url().includes('/api/admin/users?') && r.url().includes('q='))
     await page.getByLabel('Name or e-mail').press('Enter')
     await page.waitForURL(/q=/)
+    await searched
     const row = page.getByRole('row').filter({ hasText: target.email })
     await row.waitFor()
     expect(await page.getByRole('row').count()).toBe(2) // the header and the one match
@@ -133,7 +141,7 @@ describe('admin area', () => {
 
   it('creates an ensemble with its director invited, checking the form first', async () => {
     const page = await signedIn(adminEmail)
-    await page.goto(`${app.url}/admin/ensembles`)
+    await open(page, '/admin/ensembles')
     await page.getByRole('heading', { name: 'Ensembles', exact: true }).waitFor()
     await fitsScreen(page)
 
@@ -157,8 +165,10 @@ describe('admin area', () => {
 
     await page.getByRole('link', { name: 'Audit log' }).click()
     await page.getByRole('heading', { name: 'Audit log' }).waitFor()
+    const filtered = page.waitForResponse(r => r.url().includes('/api/admin/audit?') && r.url().includes('action=ensemble'))
     await page.getByLabel('What').selectOption('ensemble')
     await page.waitForURL(/action=ensemble/)
+    await filtered
     const created = page.getByRole('row').filter({ hasText: 'Created an ensemble' }).filter({ hasText: 'Saltmarsh Chamber Choir' })
     await created.waitFor()
     expect(await page.getByRole('row').filter({ hasText: 'Signed in' }).count()).toBe(0)
