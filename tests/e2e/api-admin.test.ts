@@ -132,16 +132,16 @@ describe('admin users', () => {
 describe('admin ensembles', () => {
   it('creates an ensemble and mails its first director one single-use link whose hash alone is stored', async () => {
     const directorEmail = 'new.director@example.org'
-    const r = await call('POST', '/api/admin/ensembles', { name: '  Harbour Lights Wind Band ', kind: 'band', directorEmail: ' New.Director@Example.org ' })
+    const r = await call('POST', '/api/admin/ensembles', { name: '  Harbour Lights Singers ', kind: 'choir', directorEmail: ' New.Director@Example.org ' })
     expect(r.status).toBe(201)
-    expect(r.body).toMatchObject({ name: 'Harbour Lights Wind Band', kind: 'band', archived: false, memberCount: 0, directors: [], pendingDirectorInvitations: [directorEmail] })
+    expect(r.body).toMatchObject({ name: 'Harbour Lights Singers', kind: 'choir', archived: false, memberCount: 0, directors: [], pendingDirectorInvitations: [directorEmail] })
     expect(r.body.invitation.email).toBe(directorEmail)
     const week = 7 * 86400_000
     expect(Math.abs(Date.parse(r.body.invitation.expiresAt) - (Date.now() + week))).toBeLessThan(5 * 60_000)
     expect(JSON.stringify(r.body)).not.toMatch(/token/i)
 
     const mail = await mailTo(directorEmail)
-    expect(mail.subject).toContain('Harbour Lights Wind Band')
+    expect(mail.subject).toContain('Harbour Lights Singers')
     const links = new Set([...`${mail.text} ${mail.html ?? ''}`.matchAll(/https?:\/\/[^\s"<>]+/g)].map(m => m[0]))
     expect(links.size).toBe(1)
     const link = [...links][0]!
@@ -162,7 +162,7 @@ describe('admin ensembles', () => {
 
     const audit = await get(`/api/admin/audit?ensembleId=${r.body.id}`)
     expect(audit.body.items.map((i: Json) => i.action)).toEqual(['invitation.created', 'ensemble.created'])
-    expect(audit.body.items[1]).toMatchObject({ target: { type: 'ensemble', id: r.body.id, label: 'Harbour Lights Wind Band' }, after: { name: 'Harbour Lights Wind Band', kind: 'band' } })
+    expect(audit.body.items[1]).toMatchObject({ target: { type: 'ensemble', id: r.body.id, label: 'Harbour Lights Singers' }, after: { name: 'Harbour Lights Singers', kind: 'choir' } })
   })
 
   it('refuses a bad address, a missing kind and a name in use, and creates nothing', async () => {

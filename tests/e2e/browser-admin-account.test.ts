@@ -129,7 +129,7 @@ describe('admin area', () => {
     expect(await confirm.evaluate(el => el === document.activeElement)).toBe(true)
     await page.keyboard.press('Enter')
     await page.getByText(/is disabled and signed out everywhere/).first().waitFor()
-    await row.getByText('Disabled', { exact: true }).waitFor()
+    await row.getByText('Disabled', { exact: true }).filter({ visible: true }).waitFor()
     await expect(app.login(target.email)).rejects.toThrow(/401/)
 
     await row.getByRole('button', { name: /^Restore / }).click()

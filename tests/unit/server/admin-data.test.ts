@@ -93,8 +93,8 @@ describe('ensembles', () => {
   })
 
   it('archives and restores, listing open ones first', async () => {
-    const a = (await createEnsembleWithDirector(db, adminId, { name: 'Alpha Band', kind: 'band', directorEmail: 'a@example.org' }, null)).ensemble
-    await createEnsembleWithDirector(db, adminId, { name: 'Beta Band', kind: 'band', directorEmail: 'b@example.org' }, null)
+    const a = (await createEnsembleWithDirector(db, adminId, { name: 'Alpha Band', kind: 'choir', directorEmail: 'a@example.org' }, null)).ensemble
+    await createEnsembleWithDirector(db, adminId, { name: 'Beta Band', kind: 'choir', directorEmail: 'b@example.org' }, null)
     expect((await setEnsembleArchived(db, adminId, a.id, true, null))!.archived).toBe(true)
     const list = await listAdminEnsembles(db, { archived: 'all', page: 1, pageSize: 25 })
     expect(list.items.map(e => e.name)).toEqual(['Beta Band', 'Alpha Band'])
