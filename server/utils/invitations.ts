@@ -1,5 +1,5 @@
 import type { Knex } from 'knex'
-import type { EnsembleRole } from './auth'
+import type { EnsembleRole } from '../../shared/types/user'
 import { hashToken, newToken, normaliseEmail } from './accounts'
 import type { OutgoingMail } from './mail'
 
