@@ -31,6 +31,8 @@ const MATRIX: Row[] = [
   ['GET /api/home',                                  401, 200, 200, 200, 200, 200, 200, 401],
   ['GET /api/ensembles',                             401, 200, 200, 200, 200, 200, 200, 401],
   ['GET /api/ensembles/[id]/drills',                 401, 200, 200, 200, 200, 404, 200, 401],
+  ['GET /api/ensembles/[id]/stats',                  401, 200, 200, 403, 200, 404, 200, 401], // the player's figures
+  ['GET /api/ensembles/[id]/holds.csv',              401, 200, 200, 403, 200, 404, 200, 401], // the player's holds
   ['POST /api/ensembles/[id]/drills/import',         401, 403, 403, 403, 201, 404, 201, 401],
   ['GET /api/drills/[id]',                           401, 200, 200, 200, 200, 404, 200, 401],
   ['GET /api/takes',                                 401, 200, 200, 200, 200, 200, 200, 401],
@@ -89,7 +91,7 @@ function readmePeople (): Person[] {
 let app: App
 const cookies = {} as Record<Caller, string>
 const emails = {} as Record<Caller, string>
-const ids = { ensemble: 0, drill: 0, take: 0, mail: '', leaderOther: 0 }
+const ids = { ensemble: 0, drill: 0, take: 0, mail: '', leaderOther: 0, player: 0 }
 let drillDoc: unknown
 let part = ''
 const audio = triadTake([0, 0, 0]).wav
@@ -143,6 +145,7 @@ beforeAll(async () => {
   drillDoc = (await asJson(await app.fetch(`/api/drills/${ids.drill}`, { cookie: cookies.director }))).document
   const users = await asJson(await app.fetch(`/api/admin/users?q=${encodeURIComponent(emails.leaderOtherSection)}`, { cookie: cookies.siteAdmin }))
   ids.leaderOther = users.items[0].id
+  ids.player = (await asJson(await app.fetch(`/api/admin/users?q=${encodeURIComponent(emails.player)}`, { cookie: cookies.siteAdmin }))).items[0].id
 
   // A message to the player (a reset link they did not use): theirs and the admin's to read.
   await app.fetch('/api/auth/password-reset', { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email: emails.player }) })
@@ -210,6 +213,8 @@ const CALLS: Record<string, Call> = {
   'GET /api/home': { path: () => '/api/home' },
   'GET /api/ensembles': { path: () => '/api/ensembles' },
   'GET /api/ensembles/[id]/drills': { path: () => `/api/ensembles/${ids.ensemble}/drills` },
+  'GET /api/ensembles/[id]/stats': { path: () => `/api/ensembles/${ids.ensemble}/stats?userId=${ids.player}` },
+  'GET /api/ensembles/[id]/holds.csv': { path: () => `/api/ensembles/${ids.ensemble}/holds.csv?userId=${ids.player}` },
   'POST /api/ensembles/[id]/drills/import': {
     path: () => `/api/ensembles/${ids.ensemble}/drills/import`,
     body: () => form({}, { file: [new Blob([JSON.stringify(drillDoc)], { type: 'application/json' }), 'drill.json'] }),
