@@ -8,6 +8,7 @@ import * as m003 from '../../migrations/003_takes_and_analyses'
 import * as m004 from '../../migrations/004_reviews'
 import * as m005 from '../../migrations/005_jobs_and_audit'
 import * as m006 from '../../migrations/006_people_settings'
+import * as m007 from '../../migrations/007_accounts_and_admin'
 import * as m008 from '../../migrations/008_drill_versions'
 
 interface Migration { up: (knex: Knex) => Promise<void>, down: (knex: Knex) => Promise<void>, config?: { transaction?: boolean } }
@@ -19,6 +20,7 @@ export const MIGRATIONS: Record<string, Migration> = {
   '004_reviews.ts': m004,
   '005_jobs_and_audit.ts': m005,
   '006_people_settings.ts': m006,
+  '007_accounts_and_admin.ts': m007,
   '008_drill_versions.ts': m008,
 }
 

@@ -19,7 +19,7 @@ export interface Membership {
   viaSiteAdmin: boolean
 }
 
-interface UserRow { id: number, email: string, name: string, site_role: string | null, disabled_at: string | null, password_changed_at: string | null }
+interface UserRow { id: number, email: string, name: string, site_role: string | null, disabled_at: string | null, password_changed_at: string | null, sessions_revoked_at: string | null }
 
 export function toSessionUser (row: Pick<UserRow, 'id' | 'email' | 'name' | 'site_role'>): SessionUser {
   return { id: row.id, email: row.email, name: row.name, siteRole: row.site_role === 'admin' ? 'admin' : null }
@@ -27,8 +27,8 @@ export function toSessionUser (row: Pick<UserRow, 'id' | 'email' | 'name' | 'sit
 
 /**
  * The signed-in user, re-read from the database (401 without a valid session). Call it first in
- * a route, before reading any input. Disabled accounts and sessions older than the last password
- * change are refused and their cookie cleared.
+ * a route, before reading any input. Disabled accounts, and sessions older than the last password
+ * change or than the account's last disabling, are refused and their cookie cleared.
  */
 export async function requireUser (event: H3Event): Promise<SessionUser> {
   if (event.context.user) return event.context.user as SessionUser
@@ -36,10 +36,11 @@ export async function requireUser (event: H3Event): Promise<SessionUser> {
   const id = Number(session.user?.id)
   if (!session.user || !Number.isInteger(id)) throw apiError(401, 'unauthenticated', 'Sign-in required')
   const db = useDb()
-  const row = await db('users').where({ id }).first<UserRow | undefined>('id', 'email', 'name', 'site_role', 'disabled_at', 'password_changed_at')
+  const row = await db('users').where({ id }).first<UserRow | undefined>('id', 'email', 'name', 'site_role', 'disabled_at', 'password_changed_at', 'sessions_revoked_at')
   const loggedInAt = Number(session.loggedInAt ?? 0)
   const maxAgeMs = sessionMaxAgeS() * 1000
-  const stale = (row?.password_changed_at && Date.parse(row.password_changed_at) > loggedInAt) || loggedInAt + maxAgeMs < Date.now()
+  const after = (at: string | null | undefined) => Boolean(at && Date.parse(at) > loggedInAt)
+  const stale = after(row?.password_changed_at) || after(row?.sessions_revoked_at) || loggedInAt + maxAgeMs < Date.now()
   const revoked = row && !stale && session.id ? await db('revoked_sessions').where({ session_id: session.id }).first('session_id') : null
   if (!row || row.disabled_at || stale || revoked) {
     await clearUserSession(event)

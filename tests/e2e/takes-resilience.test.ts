@@ -90,7 +90,8 @@ describe('an upload over the size limit', () => {
     form.append('drillId', String(drillId))
     form.append('part', 'Soprano')
     form.append('audio', new Blob([new Uint8Array(big)]), 'big.wav')
-    // A streamed body has no Content-Length: the limit must hold while reading.
+    // A streamed body has no Content-Length: the limit must hold while reading. Sent with
+    // node:http so the server's early answer is read even when it closes before the body is sent.
     const encoded = new Response(form)
     const r = await postChunked(app.url + '/api/takes', encoded.headers.get('content-type')!, clara, new Uint8Array(await encoded.arrayBuffer()))
     expect(r.status).toBe(413)
