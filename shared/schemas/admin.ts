@@ -3,9 +3,9 @@ import { PersonName } from './account'
 
 // Bodies and queries of the admin routes, shared with the admin pages' forms and filters.
 
-/** What an ensemble is; stored as given, shown with words by the pages. */
-export const ENSEMBLE_KINDS = ['choir', 'band', 'ensemble'] as const
-export type EnsembleKind = typeof ENSEMBLE_KINDS[number]
+import { ENSEMBLE_KINDS } from '../types/ensemble'
+
+export { ENSEMBLE_KINDS }
 
 /** Rows per page of the admin tables. */
 export const ADMIN_PAGE_SIZE = 25
@@ -17,7 +17,7 @@ const Id = z.coerce.number().int().positive().max(Number.MAX_SAFE_INTEGER)
 /** POST /api/admin/ensembles: a new ensemble and the address its first director is invited at. */
 export const AdminEnsembleBody = z.object({
   name: PersonName.pipe(z.string().max(120)),
-  kind: z.enum(ENSEMBLE_KINDS, 'Choose choir, band or ensemble'),
+  kind: z.enum(ENSEMBLE_KINDS, 'Choose choir, brass band, wind band or mixed'),
   directorEmail: z.string().trim().toLowerCase().pipe(z.email('Enter an e-mail address like name@example.org').max(254)),
 }).strict()
 export type AdminEnsembleBody = z.infer<typeof AdminEnsembleBody>

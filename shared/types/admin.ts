@@ -1,4 +1,4 @@
-import type { EnsembleKind } from '../schemas/admin'
+import type { EnsembleKind } from './ensemble'
 
 /** One row of GET /api/admin/users (and the answer of PATCH /api/admin/users/:id). */
 export interface AdminUser {
