@@ -4,7 +4,7 @@ import { TuningError } from '../shared/tuning/index'
 import { analyzeTake } from '../server/analysis/index'
 import type { TakeReport } from '../server/analysis/index'
 import { isAnalysisError } from '../server/analysis/errors'
-import { DRIFT_TOO_FEW, holdKind, wrongNoteText } from '../shared/report-wording'
+import { DRIFT_TOO_FEW, holdKind, withReferencePitch, wrongNoteText } from '../shared/report-wording'
 import type { Io } from './common'
 import { checkSystemFlags, loadDrill, pad, parseFlags, parseFraction, parseNumber, readInput, signed, SYSTEM_HELP, SYSTEM_OPTIONS, systemFromFlags, TUNING_HELP, UsageError } from './common'
 
@@ -43,7 +43,7 @@ export function formatReport (drill: DrillDocument, report: TakeReport): string 
   const t = report.take
   lines.push(`${drill.title} — part ${report.part}`)
   lines.push(`Take ${t.durationS.toFixed(1)} s, ${t.sampleRate} Hz, ${t.channels} channel${t.channels === 1 ? '' : 's'}`)
-  lines.push(`${report.description} · A4 = ${report.a4} Hz · tolerance ±${report.tolerance} ¢`)
+  lines.push(`${withReferencePitch(report.description, report.a4)} · tolerance ±${report.tolerance} ¢`)
   lines.push('')
   const rows = [['Chord', 'Note', 'Member', 'Target Hz', 'Heard Hz', 'From target', 'From equal', 'In tol.', 'Spread', 'Slope', 'Vibrato', 'Conf.']]
   for (const h of report.holds) {
@@ -82,6 +82,7 @@ export function formatReport (drill: DrillDocument, report: TakeReport): string 
   } else if (s.holdsFound > 0) {
     parts.push(`drift: ${DRIFT_TOO_FEW}`)
   }
+  if (s.wrongNotes) parts.push(`${s.wrongNotes} wrong note${s.wrongNotes === 1 ? '' : 's'}`)
   lines.push(parts.join(' · '))
   const members = Object.keys(report.memberBias)
   if (members.length) {
@@ -94,7 +95,7 @@ export function formatReport (drill: DrillDocument, report: TakeReport): string 
   }
   const missing = report.holds.filter(h => holdKind(h) === 'missing')
   if (missing.length) {
-    lines.push('Not scored:')
+    lines.push('Not measured:')
     for (const h of missing) lines.push(`  chord ${h.index + 1} (${h.note}): ${h.reason ?? 'no pitch found'}`)
   }
   for (const w of report.warnings) if (w.code !== 'holds_missing') lines.push(`Note: ${w.message}`)

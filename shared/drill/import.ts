@@ -1,5 +1,6 @@
 // One entry for every drill file: a drill document (JSON), a Standard MIDI File, a MusicXML score
 // or a compressed MusicXML file (.mxl). Used by the import route and the command line.
+import { jsonErrorPlace } from '../text'
 import { TuningError } from '../tuning/errors'
 import { midiToDrill } from './midi'
 import { musicXmlToDrill, parseBars, readMxl, type BarRange } from './musicxml'
@@ -59,10 +60,13 @@ export function readDrillFile(bytes: Uint8Array, opts: DrillFileOptions = {}): D
     }
     case 'json': {
       let json: Record<string, unknown>
+      const text = decodeText(bytes)
       try {
-        json = JSON.parse(decodeText(bytes)) as Record<string, unknown>
-      } catch (e) {
-        throw new TuningError('invalid_json', `The drill document is not valid JSON: ${(e as Error).message}`)
+        json = JSON.parse(text) as Record<string, unknown>
+      } catch {
+        // The parser's own wording varies by engine; say where instead.
+        const place = jsonErrorPlace(text)
+        throw new TuningError('invalid_json', `The drill file is not valid JSON${place ? ` (${place})` : ''}`)
       }
       if (bars) warnings.push('A bar range applies to MusicXML and MIDI files; the drill document was imported whole')
       const drill = parseDrill(json && typeof json === 'object' && title ? { ...json, title } : json)

@@ -79,7 +79,7 @@ describe('driftline analyze', () => {
     expect(table.code).toBe(0)
     expect(table.out).toMatch(/heard G4/)
     expect(table.out).toMatch(/1 wrong note/)
-    expect(table.out).toMatch(/chord 1 \(E4\): Heard G4 instead of E4 \(\+300\.0 ¢ from E4\)/)
+    expect(table.out).toMatch(/chord 1: Wrong note: heard G4, \+300 ¢ from the expected E4/)
     const j = JSON.parse((await cli('--audio', path, '--drill', drillPath, '--part', 'Alto', '--json')).out)
     expect(j.holds[0]).toMatchObject({ reasonCode: 'wrong_note', heardNote: 'G4', centsFromTarget: null, withinTolerance: null })
     expect(j.holds[0].heardCentsFromExpected).toBeCloseTo(300, 1)
