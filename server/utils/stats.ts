@@ -179,17 +179,20 @@ async function targetsFor (db: Knex, cache: Map<number, { version: number, targe
 }
 
 const generations = new WeakMap<Knex, { n: number }>()
+// Writes to the tables the figures are made from. The job queue, sessions and the audit log are
+// written all the time (the analysis pool polls every second) and change no figure.
+const FIGURE_WRITE = /^\s*(insert\s+into|update|delete\s+from|replace\s+into|alter\s+table|drop\s+table|create\s+table)\s+[`"]?(takes|analyses|hold_results|memberships|users|sections|drills|drill_[a-z_]+|assignments)\b/i
 
 /**
  * A fingerprint of the database's contents for cached figures, cheap enough to check on every
- * request: a count of this process's writes (every statement through the Knex handle that is not
- * a read) and SQLite's `data_version`, which moves when another connection or process commits.
+ * request: a count of this process's writes to the tables the figures come from, and SQLite's
+ * `data_version`, which moves when another connection or process commits.
  */
 export async function statsFingerprint (db: Knex): Promise<string> {
   let gen = generations.get(db)
   if (!gen) {
     const g = { n: 0 }
-    db.on('query', (q: { sql?: string }) => { if (!/^\s*(select|pragma)\b/i.test(q.sql ?? '')) g.n++ })
+    db.on('query', (q: { sql?: string }) => { if (FIGURE_WRITE.test(q.sql ?? '')) g.n++ })
     generations.set(db, gen = g)
   }
   const rows = await db.raw('pragma data_version') as Array<{ data_version: number }>
