@@ -118,7 +118,8 @@ describe('inviting a singer through the pages', () => {
     await editor.getByLabel('Role').selectOption('section_leader')
     await editor.getByRole('button', { name: 'Save' }).click()
     await dir.getByRole('status').filter({ hasText: `Saved ${singer.name}: Section leader, Tenor.` }).waitFor({ state: 'attached' })
-    expect(await row.textContent()).toContain('Section leader')
+    // The status is announced before the table has reloaded: wait for the row to show the change.
+    await expect.poll(() => row.textContent(), { timeout: 10_000 }).toContain('Section leader')
     await dirCtx.close()
 
     // The audit log: the invitation accepted (membership created) and the role change, with before and after.
