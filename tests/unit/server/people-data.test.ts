@@ -5,7 +5,7 @@ import { createKnex } from '../../../server/database/knex'
 import { migrateLatest } from '../../../server/database/migrations'
 import { mergeSections, removeSection, reorderSections, createSection, updateSection } from '../../../server/utils/sections'
 import { listMembers, removeMember, updateMember } from '../../../server/utils/members'
-import { acceptInvitation, inviteToEnsemble, findInvitationByToken, resendInvitation } from '../../../server/utils/ensemble-invitations'
+import { acceptInvitation, inviteToEnsemble, findInvitationByToken, resendInvitation } from '../../../server/utils/invitations'
 import { mergeSystem, storedSystem } from '../../../server/utils/ensemble-settings'
 import { hashToken } from '../../../server/utils/accounts'
 
