@@ -9,7 +9,7 @@ import { computeTargets } from '../../shared/tuning/index'
 import type { TargetsResult } from '../../shared/tuning/index'
 import { scoreMeasurement } from '../analysis/score'
 import type { Measurement } from '../analysis/types'
-import { loadDrill } from './drills'
+import { loadDrillVersion } from './drill-edits'
 
 /** What the rows are limited to (already authorised by the route). */
 export interface HoldFilters {
@@ -79,13 +79,14 @@ export function needsRescore (s: Scoring): boolean {
  * so a large export never holds the whole result nor blocks other requests for long. Without
  * `csv`, holds from the stored results carry only what the statistics use (no note, frequencies
  * or cents from equal).
- * Returns the number of takes that could not be re-scored (their drill changed since).
+ * Re-scoring uses the drill as it was when each take was recorded. Returns the number of takes
+ * that could not be re-scored (that version of the drill is no longer stored or its targets fail).
  */
 export async function forEachHoldBatch (db: Knex, f: HoldFilters, scoring: Scoring, onBatch: (takes: StatTakeRow[], rows: CsvHoldRow[]) => void | Promise<void>, options: { batchTakes?: number, csv?: boolean } = {}): Promise<{ notRescored: number }> {
   const batchTakes = options.batchTakes ?? 1000
   let afterId = 0
   let notRescored = 0
-  const targetsCache = new Map<number, { version: number, targets: TargetsResult } | null>()
+  const targetsCache = new Map<string, TargetsResult | null>()
   for (;;) {
     const base = takeQuery(db, f).andWhere('t.id', '>', afterId).orderBy('t.id').limit(batchTakes)
     if (needsRescore(scoring)) {
@@ -95,11 +96,11 @@ export async function forEachHoldBatch (db: Knex, f: HoldFilters, scoring: Scori
       const rows: CsvHoldRow[] = []
       const scored: StatTakeRow[] = []
       for (const t of takes) {
-        const targets = await targetsFor(db, targetsCache, t.drillId, scoring)
-        if (!targets || targets.version !== t.drillVersion || !t.measurement) { notRescored++; continue }
+        const targets = await targetsFor(db, targetsCache, t.drillId, t.drillVersion, scoring)
+        if (!targets || !t.measurement) { notRescored++; continue }
         const measurement = JSON.parse(t.measurement) as Measurement
         let report
-        try { report = scoreMeasurement(measurement, targets.targets, t.part, scoring.tolerance ?? t.storedTolerance) } catch { notRescored++; continue }
+        try { report = scoreMeasurement(measurement, targets, t.part, scoring.tolerance ?? t.storedTolerance) } catch { notRescored++; continue }
         scored.push({ takeId: t.takeId, submittedAt: t.submittedAt, userId: t.userId, player: t.player, section: t.section ?? null, drillId: t.drillId, part: t.part })
         report.holds.forEach((h, i) => {
           if (h.centsFromTarget == null || h.centsFromEqual == null || Math.abs(h.centsFromEqual) > WRONG_NOTE_CENTS) return
@@ -170,17 +171,19 @@ async function rawRows (db: Knex, qb: Knex.QueryBuilder): Promise<unknown[][]> {
 }
 interface RawConnection { prepare: (sql: string) => { raw: (on: boolean) => { all: (...b: unknown[]) => unknown } } }
 
-async function targetsFor (db: Knex, cache: Map<number, { version: number, targets: TargetsResult } | null>, drillId: number, s: Scoring) {
-  if (cache.has(drillId)) return cache.get(drillId)!
-  const drill = await loadDrill(db, drillId)
-  let entry: { version: number, targets: TargetsResult } | null = null
-  if (drill) {
+/** Targets of the drill as it was at `version` (the one the take was recorded against) under the scoring. */
+async function targetsFor (db: Knex, cache: Map<string, TargetsResult | null>, drillId: number, version: number, s: Scoring) {
+  const key = `${drillId}:${version}`
+  if (cache.has(key)) return cache.get(key)!
+  const doc = await loadDrillVersion(db, drillId, version).catch(() => null)
+  let targets: TargetsResult | null = null
+  if (doc) {
     try {
-      entry = { version: drill.version, targets: computeTargets(drill.document, s.system ?? drill.document.system, s.a4 ?? drill.document.a4) }
-    } catch { entry = null }
+      targets = computeTargets(doc, s.system ?? doc.system, s.a4 ?? doc.a4)
+    } catch { targets = null }
   }
-  cache.set(drillId, entry)
-  return entry
+  cache.set(key, targets)
+  return targets
 }
 
 const generations = new WeakMap<Knex, { n: number }>()
