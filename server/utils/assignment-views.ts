@@ -111,8 +111,10 @@ export async function assignmentProgress (db: Knex, ensembleId: number, assignme
   if (latest.length) {
     for (const a of await db('analyses').whereIn('take_id', latest).where({ is_current: true }).select('take_id', 'mean_abs_cents')) means.set(a.take_id, num(a.mean_abs_cents))
   }
+  const tolerance = Number((await db('drills').where({ id: assignment.drillId }).first('tolerance'))?.tolerance ?? 10)
   return {
     assignment,
+    tolerance,
     players: rows.map((r: any) => ({
       userId: r.user_id,
       name: r.name,

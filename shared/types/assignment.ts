@@ -77,5 +77,7 @@ export interface AssignmentProgressPlayer {
 
 export interface AssignmentProgress {
   assignment: AssignmentSummary
+  /** ± cents the drill grades at (for the deviation colours). */
+  tolerance: number
   players: AssignmentProgressPlayer[]
 }
