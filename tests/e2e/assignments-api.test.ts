@@ -118,7 +118,7 @@ describe('creating an assignment', () => {
     const bad = await read(await create({ drillId: 'x', sectionIds: 'all', dueAt: 'Thursday' }))
     expect(bad.status).toBe(400)
     expect(bad.body.data.code).toBe('invalid_input')
-    expect(bad.body.data.issues.map((i: Json) => i.path[0]).sort()).toEqual(['drillId', 'dueAt', 'sectionIds'])
+    expect([...new Set(bad.body.data.issues.map((i: Json) => i.path[0]))].sort()).toEqual(['drillId', 'dueAt', 'sectionIds'])
     expect((await create(valid(), c.june)).status).toBe(403)
   })
 })
