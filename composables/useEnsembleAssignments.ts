@@ -1,3 +1,4 @@
+import type { Ref } from 'vue'
 import type { AssignmentList } from '#shared/types/assignment'
 import type { EnsembleDetail, MemberItem, Page } from '#shared/types/ensemble'
 import type { DrillListItem } from '#shared/types/drill-view'
@@ -6,7 +7,7 @@ import type { DrillListItem } from '#shared/types/drill-view'
  * An ensemble's assignments a page at a time, with what the assignment form needs: its sections,
  * members (every page) and active drills. Nothing is fetched while `ensembleId` is null.
  */
-export function useEnsembleAssignments(ensembleId: Ref<number | null>, opts: { page: Ref<number>, archived: Ref<boolean>, withForm: Ref<boolean> }) {
+export function useEnsembleAssignments(ensembleId: Ref<number | null>, opts: { page: Ref<number>, archived: Ref<boolean>, withForm: Readonly<Ref<boolean>> }) {
   const list = useAsyncData<AssignmentList | null>(
     () => `assignments:${ensembleId.value}:${opts.page.value}:${opts.archived.value}`,
     () => ensembleId.value
