@@ -183,6 +183,11 @@ describe('the director\'s views', () => {
     const spare = (await read(await create(valid({ sectionIds: [ids.tenor] })))).body.id
     expect((await json(c.director, 'PATCH', `/api/ensembles/${ids.choir}/assignments/${spare}`, { archived: true })).status).toBe(200)
     expect((await read(await app.fetch('/api/assignments', { cookie: c.daniel }))).body.some((a: Json) => a.id === spare)).toBe(false)
+    // An archived assignment takes no more takes: a clear 409, and no take is stored.
+    const late = await postTake(app, c.daniel, { drillId: ids.drill, part: 'Soprano', audio: triadTake([0, 0, 0]).wav, assignmentId: spare })
+    expect(late.status).toBe(409)
+    expect(late.body.data.code).toBe('assignment_archived')
+    expect(dbQuery(app, 'select count(*) as n from takes where assignment_id = ?', spare)[0].n).toBe(0)
   })
 })
 

@@ -118,6 +118,17 @@ describe('mail', () => {
   })
 })
 
+describe('moving the due date', () => {
+  it('later: the reminder goes out again for the new date; earlier: nothing is cleared', async () => {
+    const r = await createAssignment(db, ids.choir, ids.director, body({ sectionIds: [], userIds: [ids.june], dueAt: due(60) }), now) as { id: number }
+    await db('assignment_assignees').where({ assignment_id: r.id }).update({ notified_at: now.toISOString(), reminded_at: due(40) })
+    await updateAssignment(db, ids.choir, r.id, ids.director, { dueAt: due(50) } as any, now)
+    expect(await db('assignment_assignees').where({ assignment_id: r.id }).first('reminded_at')).toEqual({ reminded_at: due(40) })
+    await updateAssignment(db, ids.choir, r.id, ids.director, { dueAt: due(120) } as any, now)
+    expect(await db('assignment_assignees').where({ assignment_id: r.id }).first('reminded_at')).toEqual({ reminded_at: null })
+  })
+})
+
 describe('reading', () => {
   it('a player sees the assignment as due, then overdue, then submitted; the director sees the take', async () => {
     const r = await createAssignment(db, ids.choir, ids.director, body({ sectionIds: [], userIds: [ids.june], dueAt: due(24) }), now) as { id: number }
