@@ -194,8 +194,10 @@ export async function updateAssignment (db: Knex, ensembleId: number, assignment
     }
     if (Object.keys(changes).length) await trx('assignments').where({ id: assignmentId }).update({ ...changes, updated_at: at })
     if (newcomers) await enqueueJob(trx, ASSIGNMENT_NOTICE_JOB, { assignmentId }, { maxAttempts: 5 })
-    const before = Object.fromEntries(Object.keys(changes).map(k => [k, a[k] ?? null]))
-    await writeAudit(trx, { actorId, action: archived === true ? 'assignment.archived' : archived === false ? 'assignment.restored' : 'assignment.updated', subjectType: 'assignment', subjectId: assignmentId, ensembleId, before, after: { ...changes, ...(newcomers ? { newAssignees: newcomers } : {}) } })
+    const camel = (k: string) => k.replace(/_([a-z])/g, (_, c: string) => c.toUpperCase())
+    const before = Object.fromEntries(Object.keys(changes).map(k => [camel(k), a[k] ?? null]))
+    const after = Object.fromEntries(Object.entries(changes).map(([k, v]) => [camel(k), v]))
+    await writeAudit(trx, { actorId, action: archived === true ? 'assignment.archived' : archived === false ? 'assignment.restored' : 'assignment.updated', subjectType: 'assignment', subjectId: assignmentId, ensembleId, before, after: { ...after, ...(newcomers ? { newAssignees: newcomers } : {}) } })
     const count = Number((await trx('assignment_assignees').where({ assignment_id: assignmentId }).count({ n: '*' }).first())?.n ?? 0)
     return { ok: true as const, assignees: count }
   })
