@@ -4,7 +4,7 @@
 import { afterEach, beforeEach, describe, expect, it } from 'vitest'
 import type { Knex } from 'knex'
 import { createKnex } from '../../../server/database/knex'
-import { migrateLatest, migrationSource } from '../../../server/database/migrations'
+import { migrationSource } from '../../../server/database/migrations'
 
 let db: Knex
 beforeEach(() => { db = createKnex(':memory:') })
@@ -30,7 +30,8 @@ describe('migration 009', () => {
     ]).returning('id')
     await db('takes').insert({ ensemble_id: e.id, drill_id: d.id, user_id: users[0].id, assignment_id: onlyAltos.id, part: 'Alto', object_key: 'k1' })
 
-    expect(await migrateLatest(db)).toEqual(['009_assignment_assignees.ts'])
+    await db.migrate.up({ migrationSource }) // 009, the next after 008
+    expect(await db.schema.hasTable('assignment_assignees')).toBe(true)
     const rows = async (id: number) => db('assignment_assignees').where({ assignment_id: id }).orderBy('user_id').select('user_id', 'part', 'notified_at', 'reminded_at')
     expect(await rows(onlyAltos.id)).toEqual([{ user_id: users[0].id, part: 'Alto', notified_at: '2029-12-01T00:00:00.000Z', reminded_at: null }])
     // The whole ensemble: players and section leaders, each with the part named like their section; not the director.

@@ -102,7 +102,7 @@ describe('migrations', () => {
     expect(await db('drill_versions').where({ drill_id: d.id }).first()).toMatchObject({ version: 2, document: '{"title":"D"}' })
     expect(await db('drills').where({ id: d.id }).first()).toMatchObject({ copied_from: null })
     expect((await db.raw('pragma foreign_keys') as { foreign_keys: number }[])[0]!.foreign_keys).toBe(1)
-    await db.migrate.down({ migrationSource })
+    await db.migrate.down({ migrationSource, name: '008_drill_versions.ts' })
     expect(await db.schema.hasTable('drill_versions')).toBe(false)
     expect(await db.schema.hasColumn('drills', 'copied_from')).toBe(false)
     expect(await db('takes').count({ n: '*' })).toEqual([{ n: 1 }])
