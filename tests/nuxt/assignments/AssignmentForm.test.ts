@@ -11,7 +11,7 @@ const drill = { id: 4, title: 'Evening cadence', key: 'F major', tempo: 60, a4: 
 const props = {
   ensembleId: 9,
   sections: [{ id: 21, name: 'Alto', position: 0, memberCount: 3, instrument: null }, { id: 22, name: 'Bells', position: 1, memberCount: 2, instrument: null }],
-  members: [{ userId: 31, name: 'Noor Vale', role: 'player' as const, sectionId: 21, section: 'Alto', instrument: null, reads: 'concert' as const }],
+  members: [{ userId: 31, name: 'Noor Vale', role: 'player' as const, sectionId: 21, section: 'Alto', instrument: null, reads: 'concert' as const, readsFromAccount: false }],
   drills: [drill],
   presetDrillId: 4,
 }
