@@ -86,6 +86,12 @@ export default defineNuxtConfig({
       /** Days an invitation link stays valid. */
       ttlDays: 7,
     },
+    assignments: {
+      /** How often the notice and reminder jobs are looked for, in ms. */
+      pollMs: 2000,
+      /** Seconds between two runs of the reminder sweep (a reminder goes out a day before the due date). */
+      reminderEveryS: 600,
+    },
     /** Largest JSON body in bytes. */
     maxJsonBytes: 1024 * 1024,
     /** Public address used in mailed links. */

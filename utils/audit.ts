@@ -16,6 +16,10 @@ const ACTIONS: Record<string, string> = {
   'ensemble.archived': 'Archived an ensemble',
   'ensemble.restored': 'Restored an ensemble',
   'invitation.created': 'Sent an invitation',
+  'assignment.created': 'Assigned a drill',
+  'assignment.updated': 'Changed an assignment',
+  'assignment.archived': 'Archived an assignment',
+  'assignment.restored': 'Restored an assignment',
 }
 
 /** "user.site_admin_granted" → "Made a site admin"; unknown actions become readable words. */

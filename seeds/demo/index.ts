@@ -10,6 +10,7 @@ import { mulberry32, synthTake, type SynthSpec, type SynthTimbre } from '../../s
 import { encodeWav } from '../../server/analysis/wav'
 import { saveDrill } from '../../server/utils/drills'
 import { ANALYSE_TAKE_JOB, enqueueJob } from '../../server/utils/jobs'
+import { addSectionAssignees } from '../../server/utils/assignments'
 import { ASSIGNMENTS, DEMO_PASSWORD, DRILLS, ENSEMBLES, PEOPLE, REVIEWS, TAKES, type DemoTake } from './scenario'
 
 export { DEMO_PASSWORD } from './scenario'
@@ -174,6 +175,7 @@ export async function seedDemo (db: Knex, deps: SeedDeps): Promise<SeedResult> {
           created_at: iso(now.getTime() - (Math.max(0, -a.dueInDays) + 7) * DAY),
         }).returning('id')
         assignmentIds.push(row.id)
+        await addSectionAssignees(trx, row.id, iso(now.getTime() - (Math.max(0, -a.dueInDays) + 7) * DAY))
       }
 
       const takeIds: number[] = []

@@ -10,6 +10,7 @@ import * as m005 from '../../migrations/005_jobs_and_audit'
 import * as m006 from '../../migrations/006_people_settings'
 import * as m007 from '../../migrations/007_accounts_and_admin'
 import * as m008 from '../../migrations/008_drill_versions'
+import * as m009 from '../../migrations/009_assignment_assignees'
 import * as m011 from '../../migrations/011_member_reading_default'
 import * as m012 from '../../migrations/012_figure_indexes'
 
@@ -24,6 +25,7 @@ export const MIGRATIONS: Record<string, Migration> = {
   '006_people_settings.ts': m006,
   '007_accounts_and_admin.ts': m007,
   '008_drill_versions.ts': m008,
+  '009_assignment_assignees.ts': m009,
   '011_member_reading_default.ts': m011,
   '012_figure_indexes.ts': m012,
 }

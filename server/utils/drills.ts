@@ -125,7 +125,8 @@ export async function preselectedPart (db: Knex, access: DrillAccess, assignment
   const parts = access.drill.document.parts.map(p => p.name)
   let assignmentPart: string | null = null
   if (assignmentId) {
-    const a = await db('assignments').where({ id: assignmentId, drill_id: access.drill.id }).first('part')
+    const a = await db('assignment_assignees as aa').join('assignments as x', 'x.id', 'aa.assignment_id')
+      .where({ 'aa.assignment_id': assignmentId, 'aa.user_id': access.membership.userId, 'x.drill_id': access.drill.id }).first('aa.part')
     assignmentPart = a?.part ?? null
   }
   let sectionName: string | null = null

@@ -1,6 +1,7 @@
 import type { Knex } from 'knex'
 import type { SessionUser } from '../../shared/types/user'
 import type { HomeData, HomeDue } from '../../shared/types/home'
+import { assignmentStatus } from '../../shared/assignments/status'
 
 /** Window of the director's per-ensemble summary, in days. */
 export const SUMMARY_DAYS = 28
@@ -31,24 +32,19 @@ export async function loadHome (db: Knex, user: SessionUser, now = new Date()): 
     .orderByRaw('e.name collate nocase')
 
   const keepSince = new Date(now.getTime() - DUE_KEEP_DAYS * 86400_000).toISOString()
-  const dueRows = await db('assignments as a')
+  // The caller's own assignments (as an assignee, still a member), open ensembles only.
+  const dueRows = await db('assignment_assignees as aa')
+    .join('assignments as a', 'a.id', 'aa.assignment_id')
     .join('memberships as m', function () {
-      this.on('m.ensemble_id', '=', 'a.ensemble_id').andOn('m.user_id', '=', db.raw('?', [uid]))
+      this.on('m.ensemble_id', '=', 'a.ensemble_id').andOn('m.user_id', '=', 'aa.user_id')
     })
     .join('ensembles as e', 'e.id', 'a.ensemble_id')
     .join('drills as d', 'd.id', 'a.drill_id')
-    .leftJoin('sections as s', 's.id', 'm.section_id')
-    .whereIn('m.role', ['player', 'section_leader'])
+    .where('aa.user_id', uid)
     .whereNull('a.archived_at').whereNull('e.archived_at')
-    .where(q => q.whereNull('a.section_id').orWhereRaw('a.section_id = m.section_id'))
-    .select('a.id', 'a.ensemble_id', 'e.name as ensemble_name', 'a.drill_id', 'd.title as drill_title', 'd.tolerance', 'a.title', 'a.part', 'a.due_at', 's.name as section_name',
-      db.raw('exists (select 1 from takes t where t.assignment_id = a.id and t.user_id = ? and t.withdrawn_at is null) as submitted', [uid]))
+    .select('a.id', 'a.ensemble_id', 'e.name as ensemble_name', 'a.drill_id', 'd.title as drill_title', 'd.tolerance', 'a.title', 'aa.part', 'a.due_at',
+      db.raw('exists (select 1 from takes t where t.assignment_id = a.id and t.user_id = aa.user_id and t.withdrawn_at is null) as submitted'))
     .orderByRaw('a.due_at is null, a.due_at, a.id')
-  const drillIds = [...new Set(dueRows.map((r: any) => r.drill_id as number))]
-  const partRows = drillIds.length ? await db('drill_parts').whereIn('drill_id', drillIds).orderBy(['drill_id', 'position']).select('drill_id', 'name') : []
-  const partsOf = new Map<number, string[]>()
-  for (const p of partRows) partsOf.set(p.drill_id, [...(partsOf.get(p.drill_id) ?? []), p.name])
-  const nowIso = now.toISOString()
   const due = dueRows
     .filter((r: any) => !r.submitted || !r.due_at || r.due_at >= keepSince)
     .slice(0, LIST_LIMIT)
@@ -59,10 +55,10 @@ export async function loadHome (db: Knex, user: SessionUser, now = new Date()): 
       drillId: r.drill_id,
       drillTitle: r.drill_title,
       title: r.title,
-      part: partForSection(partsOf.get(r.drill_id) ?? [], r.part, r.section_name),
+      part: r.part ?? null,
       dueAt: r.due_at,
       submitted: Boolean(r.submitted),
-      overdue: !r.submitted && r.due_at != null && r.due_at < nowIso,
+      overdue: assignmentStatus({ dueAt: r.due_at ?? null, submitted: Boolean(r.submitted) }, now) === 'overdue',
       tolerance: Number(r.tolerance),
     }))
 

@@ -72,6 +72,8 @@ async function moveEverything (trx: Knex.Transaction, fromId: number, toId: numb
   const moved = await trx('memberships').where({ section_id: fromId }).update({ section_id: toId, updated_at: new Date().toISOString() })
   await trx('invitations').where({ section_id: fromId }).update({ section_id: toId })
   await trx('assignments').where({ section_id: fromId }).update({ section_id: toId })
+  await trx('assignment_targets').where({ section_id: fromId }).update({ section_id: toId })
+  await trx('assignment_assignees').where({ section_id: fromId }).update({ section_id: toId })
   return moved
 }
 
@@ -99,6 +101,7 @@ export async function removeSection (db: Knex, ensembleId: number, sectionId: nu
     if (!row) return { ok: false, code: 'not_found' }
     const members = Number((await trx('memberships').where({ section_id: sectionId }).count({ n: '*' }).first())?.n ?? 0)
     const assignments = Number((await trx('assignments').where({ section_id: sectionId }).count({ n: '*' }).first())?.n ?? 0)
+      + Number((await trx('assignment_targets').where({ section_id: sectionId }).count({ n: '*' }).first())?.n ?? 0)
     let target: SectionRow | undefined
     if (moveTo !== undefined) {
       target = await findSection(trx, ensembleId, moveTo)

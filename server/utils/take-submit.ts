@@ -6,7 +6,7 @@ import type { TakeStatusName, TakeUploadLimits } from '../../shared/types/take'
 import type { TakeFields } from '../../shared/schemas/take'
 import { ANALYSE_TAKE_JOB, enqueueJob } from './jobs'
 import { writeAudit } from './audit'
-import { openAssignmentsFor } from './take-assignments'
+import { assigneeOf, openAssignmentsFor } from './take-assignments'
 import { findDrillForUser, type DrillAccess } from './access'
 import type { StoredUpload } from './uploads'
 
@@ -23,6 +23,9 @@ export type TakeRefusal =
   | { refused: 'unknown_part', part: string, parts: string[] }
   | { refused: 'assignment_not_found' }
   | { refused: 'assignment_mismatch', assignmentId: number }
+  | { refused: 'assignment_archived', assignmentId: number }
+  | { refused: 'assignment_part', assignmentId: number, part: string }
+  | { refused: 'attempts_used', assignmentId: number, attempts: number, used: number }
 
 export interface PreparedTake {
   access: DrillAccess
@@ -44,11 +47,18 @@ export async function prepareTake (db: Knex, user: SessionUser, f: TakeFields): 
   if (!parts.includes(f.part)) return { refused: 'unknown_part', part: f.part, parts }
   let assignmentId = f.assignmentId ?? null
   if (assignmentId) {
-    const a = await db('assignments').where({ id: assignmentId }).first('ensemble_id', 'drill_id')
-    if (!a || a.ensemble_id !== access.drill.ensembleId) return { refused: 'assignment_not_found' }
-    if (a.drill_id !== access.drill.id) return { refused: 'assignment_mismatch', assignmentId }
+    // Only the caller's own assignments: anyone else's answers 404, as if it did not exist.
+    const a = await assigneeOf(db, user.id, assignmentId)
+    if (!a || a.ensembleId !== access.drill.ensembleId) return { refused: 'assignment_not_found' }
+    if (a.drillId !== access.drill.id) return { refused: 'assignment_mismatch', assignmentId }
+    if (a.archived) return { refused: 'assignment_archived', assignmentId }
+    if (a.part && a.part !== f.part) return { refused: 'assignment_part', assignmentId, part: a.part }
+    // A repeated submit (same idempotency key) is answered with its first take, never refused.
+    const repeat = f.idempotencyKey ? await findTakeByIdempotencyKey(db, user.id, f.idempotencyKey) : null
+    if (!repeat && a.attempts != null && a.used >= a.attempts) return { refused: 'attempts_used', assignmentId, attempts: a.attempts, used: a.used }
   } else {
-    const open = await openAssignmentsFor(db, user.id, access.drill.id, f.part)
+    // The caller's one open assignment of this drill and part with takes left.
+    const open = (await openAssignmentsFor(db, user.id, access.drill.id, f.part)).filter(a => a.attemptsLeft !== 0)
     if (open.length === 1) assignmentId = open[0]!.id
   }
   return { access, part: f.part, assignmentId, idempotencyKey: f.idempotencyKey ?? null }
@@ -64,7 +74,7 @@ export async function findTakeByIdempotencyKey (db: Knex, userId: number, key: s
  * Writes the take row and its analysis job in one transaction. A repeated idempotency key
  * returns the first take instead (`created: false`).
  */
-export async function createTake (db: Knex, userId: number, t: PreparedTake, upload: StoredUpload): Promise<{ id: number, status: TakeStatusName, created: boolean }> {
+export async function createTake (db: Knex, userId: number, t: PreparedTake, upload: StoredUpload): Promise<{ id: number, status: TakeStatusName, created: boolean } | Extract<TakeRefusal, { refused: 'attempts_used' }>> {
   if (t.idempotencyKey) {
     const first = await findTakeByIdempotencyKey(db, userId, t.idempotencyKey)
     if (first) return { ...first, created: false }
@@ -72,6 +82,11 @@ export async function createTake (db: Knex, userId: number, t: PreparedTake, upl
   const drill = t.access.drill
   try {
     return await db.transaction(async (trx) => {
+      if (t.assignmentId) {
+        // Checked again under the write lock: two uploads at once cannot both take the last attempt.
+        const a = await assigneeOf(trx, userId, t.assignmentId)
+        if (a && a.attempts != null && a.used >= a.attempts) return { refused: 'attempts_used' as const, assignmentId: t.assignmentId, attempts: a.attempts, used: a.used }
+      }
       const now = new Date().toISOString()
       const [row] = await trx('takes').insert({
         ensemble_id: drill.ensembleId,

@@ -12,6 +12,8 @@ export interface DrillOpenAssignment {
   part: string | null
   dueAt: string | null
   submitted: boolean
+  /** Takes the caller may still send for it (null = no limit). */
+  attemptsLeft?: number | null
 }
 
 /** GET /api/drills/:id */

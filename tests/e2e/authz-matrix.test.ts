@@ -84,6 +84,12 @@ const MATRIX: Row[] = [
   ['PATCH /api/admin/ensembles/[id]',                401, 403, 403, 403, 403, 403, 200, 401],
   ['GET /api/admin/audit',                           401, 403, 403, 403, 403, 403, 200, 401],
   ['GET /api/admin/audit/facets',                    401, 403, 403, 403, 403, 403, 200, 401],
+  // ---- assignments ----
+  ['GET /api/assignments',                           401, 200, 200, 200, 200, 200, 200, 401], // the caller's own
+  ['GET /api/ensembles/[id]/assignments',            401, 403, 200, 200, 200, 404, 200, 401],
+  ['POST /api/ensembles/[id]/assignments',           401, 403, 403, 403, 201, 404, 201, 401],
+  ['PATCH /api/ensembles/[id]/assignments/[assignmentId]', 401, 403, 403, 403, 200, 404, 200, 401],
+  ['GET /api/ensembles/[id]/assignments/[assignmentId]/progress', 401, 403, 200, 200, 200, 404, 200, 401], // another section's leader: an empty list
 ]
 
 // ---- the routes on disk ----------------------------------------------------------------------
@@ -354,6 +360,33 @@ const CALLS: Record<string, Call> = {
   'PATCH /api/admin/ensembles/[id]': { path: () => `/api/admin/ensembles/${ids.ensemble}`, body: () => ({ archived: false }) },
   'GET /api/admin/audit': { path: () => '/api/admin/audit' },
   'GET /api/admin/audit/facets': { path: () => '/api/admin/audit/facets' },
+  // ---- assignments ----
+  'GET /api/assignments': { path: () => '/api/assignments' },
+  'GET /api/ensembles/[id]/assignments': { path: () => `/api/ensembles/${ids.ensemble}/assignments` },
+  'POST /api/ensembles/[id]/assignments': {
+    path: () => `/api/ensembles/${ids.ensemble}/assignments`,
+    body: () => ({ drillId: ids.drill, sectionIds: [assignment.section], userIds: [], dueAt: new Date(Date.now() + 7 * 86400_000).toISOString(), instructions: 'Matrix' }),
+    before: assignmentReady,
+  },
+  'PATCH /api/ensembles/[id]/assignments/[assignmentId]': {
+    path: () => `/api/ensembles/${ids.ensemble}/assignments/${assignment.id}`,
+    body: () => ({ instructions: 'Matrix edit' }),
+    before: assignmentReady,
+  },
+  'GET /api/ensembles/[id]/assignments/[assignmentId]/progress': { path: () => `/api/ensembles/${ids.ensemble}/assignments/${assignment.id}/progress`, before: assignmentReady },
+}
+
+// An assignment of X to the player's section, made once by its director.
+const assignment = { section: 0, id: 0 }
+async function assignmentReady (): Promise<void> {
+  if (assignment.id) return
+  const ensemble = await asJson(await asDirector('GET', `/api/ensembles/${ids.ensemble}`))
+  assignment.section = ensemble.sections.find((s: Json) => s.name === part).id
+  const r = await app.fetch(`/api/ensembles/${ids.ensemble}/assignments`, {
+    method: 'POST', cookie: cookies.director, headers: { 'content-type': 'application/json' },
+    body: JSON.stringify({ drillId: ids.drill, sectionIds: [assignment.section], dueAt: new Date(Date.now() + 7 * 86400_000).toISOString() }),
+  })
+  assignment.id = (await asJson(r)).id
 }
 
 async function callAs (caller: Caller, route: string, call: Call): Promise<number> {

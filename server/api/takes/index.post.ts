@@ -7,6 +7,9 @@ const REFUSED = {
   unknown_part: [400, 'That part is not in the drill'],
   assignment_not_found: [404, 'Assignment not found'],
   assignment_mismatch: [400, 'The assignment is for another drill'],
+  assignment_archived: [409, 'The assignment is archived'],
+  assignment_part: [400, 'The assignment asks for another part'],
+  attempts_used: [409, 'Every attempt of this assignment is used'],
 } as const
 
 // POST /api/takes (multipart: drillId, part, optional assignmentId and idempotencyKey, THEN the
@@ -40,6 +43,11 @@ export default defineEventHandler(async (event): Promise<TakeCreated> => {
   } catch (err) {
     await upload.discard() // refused after the file was stored: keep no orphan object
     throw err
+  }
+  if ('refused' in take) {
+    await upload.discard()
+    const { refused, ...details } = take
+    throw apiError(REFUSED[refused][0], refused, REFUSED[refused][1], details)
   }
   if (!take.created) await upload.discard()
   else wakeAnalysisPool()

@@ -9,7 +9,7 @@ import { MIGRATIONS, migrateLatest, migrationSource } from '../../../server/data
 const DIR = join(import.meta.dirname, '../../../migrations')
 const DOMAIN_TABLES = [
   'users', 'ensembles', 'sections', 'memberships', 'invitations', 'password_resets', 'revoked_sessions',
-  'drills', 'drill_versions', 'drill_parts', 'drill_chords', 'drill_notes', 'assignments',
+  'drills', 'drill_versions', 'drill_parts', 'drill_chords', 'drill_notes', 'assignments', 'assignment_targets', 'assignment_assignees',
   'takes', 'analyses', 'hold_results', 'reviews', 'review_notes', 'jobs', 'audit_log',
 ]
 
@@ -97,7 +97,8 @@ describe('migrations', () => {
     const [e] = await db('ensembles').insert({ name: 'Choir', kind: 'choir' }).returning('id')
     const [d] = await db('drills').insert({ ensemble_id: e.id, title: 'D', key_name: 'C major', tempo: 60, a4: 440, system_name: 'equal', tolerance: 10, document: '{"title":"D"}', version: 2 }).returning('id')
     await db('takes').insert({ ensemble_id: e.id, drill_id: d.id, user_id: u.id, part: 'S', object_key: 'k1' })
-    expect(await migrateLatest(db)).toContain('008_drill_versions.ts')
+    await db.migrate.up({ migrationSource }) // 008 only, so the step down below undoes it
+    expect(await db.schema.hasTable('drill_versions')).toBe(true)
     expect(await db('drill_versions').where({ drill_id: d.id }).first()).toMatchObject({ version: 2, document: '{"title":"D"}' })
     expect(await db('drills').where({ id: d.id }).first()).toMatchObject({ copied_from: null })
     expect((await db.raw('pragma foreign_keys') as { foreign_keys: number }[])[0]!.foreign_keys).toBe(1)
