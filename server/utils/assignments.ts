@@ -228,3 +228,29 @@ export async function addSectionAssignees (db: Knex, assignmentId: number, notif
   }
   return n
 }
+
+/**
+ * Adds a member to the open assignments of their section (not archived, not yet due) that do
+ * not reach them yet: someone who joins or moves into a section after the drill was assigned to
+ * it gets it too, with the section's part, and the notice is queued for them. Returns how many.
+ */
+export async function joinSectionAssignments (trx: Knex, ensembleId: number, userId: number, now = new Date()): Promise<number> {
+  const m = await trx('memberships as m').leftJoin('sections as s', 's.id', 'm.section_id')
+    .where({ 'm.ensemble_id': ensembleId, 'm.user_id': userId }).first('m.role', 'm.section_id', 's.name as section_name')
+  if (!m || m.section_id == null || !['player', 'section_leader'].includes(m.role)) return 0
+  const open = await trx('assignments as a').join('assignment_targets as t', 't.assignment_id', 'a.id')
+    .where({ 'a.ensemble_id': ensembleId, 't.section_id': m.section_id }).whereNull('a.archived_at').where('a.due_at', '>', now.toISOString())
+    .whereNotExists(q => q.select(trx.raw('1')).from('assignment_assignees as x').whereRaw('x.assignment_id = a.id').where('x.user_id', userId))
+    .select('a.id', 'a.drill_id', 't.part')
+  const at = now.toISOString()
+  let n = 0
+  for (const a of open) {
+    const parts = (await trx('drill_parts').where({ drill_id: a.drill_id }).orderBy('position').select('name')).map((p: { name: string }) => p.name)
+    const part = pickPart(parts, a.part ?? undefined, m.section_name ?? null)
+    if (typeof part !== 'string') continue
+    await trx('assignment_assignees').insert({ assignment_id: a.id, user_id: userId, section_id: m.section_id, part, notified_at: null, created_at: at })
+    await enqueueJob(trx, ASSIGNMENT_NOTICE_JOB, { assignmentId: a.id }, { maxAttempts: 5 })
+    n++
+  }
+  return n
+}

@@ -5,6 +5,7 @@ import type { InvitationCreated, InvitationItem, InvitationPreview, InvitationSt
 import { hashToken, newToken, normaliseEmail } from './accounts'
 import { writeAudit } from './audit'
 import type { Actor } from './ensemble-settings'
+import { joinSectionAssignments } from './assignments'
 
 interface InvitationRow {
   id: number, ensemble_id: number, email: string, name: string | null, role: MemberRole, section_id: number | null
@@ -166,6 +167,7 @@ export async function acceptInvitation (db: Knex, invitationId: number, who: { u
     const member = await trx('memberships').where({ ensemble_id: row.ensemble_id, user_id: userId }).first('id')
     if (!member) {
       await trx('memberships').insert({ ensemble_id: row.ensemble_id, user_id: userId, role: row.role, section_id: row.section_id, created_at: now, updated_at: now })
+      await joinSectionAssignments(trx, row.ensemble_id, userId)
     }
     await trx('invitations').where({ id: row.id }).update({ accepted_at: now, accepted_user_id: userId })
     await writeAudit(trx, { actorId: userId, ip, action: 'invitation.accepted', subjectType: 'invitation', subjectId: row.id, ensembleId: row.ensemble_id, data: { before: null, after: member ? { alreadyMember: true } : { userId, role: row.role, sectionId: row.section_id } } })

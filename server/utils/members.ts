@@ -3,6 +3,7 @@ import type { MemberItem, MemberPage, MemberRole, Reading } from '../../shared/t
 import type { MemberPatch, MembersQuery } from '../../shared/schemas/ensemble'
 import { writeAudit } from './audit'
 import type { Actor } from './ensemble-settings'
+import { joinSectionAssignments } from './assignments'
 
 const ROLE_ORDER = "case m.role when 'director' then 0 when 'section_leader' then 1 else 2 end"
 
@@ -113,6 +114,7 @@ export async function updateMember (db: Knex, ensembleId: number, userId: number
       await trx('memberships').where({ id: row.id }).update({ ...update, updated_at: new Date().toISOString() })
       const action = update.role !== undefined ? 'member.role_changed' : 'member.updated'
       await writeAudit(trx, { actorId: actor.id, ip: actor.ip, action, subjectType: 'user', subjectId: userId, ensembleId, data: { before, after } })
+      if (update.section_id !== undefined || update.role !== undefined) await joinSectionAssignments(trx, ensembleId, userId)
     }
     return { ok: true, member: await memberItem(trx, ensembleId, userId) }
   })

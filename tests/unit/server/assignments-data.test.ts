@@ -158,3 +158,23 @@ describe('reading', () => {
     expect((await listMyAssignments(db, ids.june, now)).some(a => a.id === r.id)).toBe(false)
   })
 })
+
+describe('members who join a section after it was assigned', () => {
+  it('get its open assignments with the section\'s part and a notice of their own, once', async () => {
+    const { updateMember } = await import('../../../server/utils/members')
+    const future = new Date(Date.now() + 72 * 3600_000).toISOString()
+    const r = await createAssignment(db, ids.choir, ids.director, body({ dueAt: future }), now)
+    expect(r.ok).toBe(true)
+    const id = (r as any).id as number
+    const tenor = (await db('memberships').where({ ensemble_id: ids.choir, section_id: ids.tenor, role: 'player' }).first('user_id')).user_id
+    expect(await db('assignment_assignees').where({ assignment_id: id, user_id: tenor }).first()).toBeUndefined()
+    const jobs = await count('jobs')
+    const moved = await updateMember(db, ids.choir, tenor, { id: ids.director, ip: null } as any, { sectionId: ids.alto } as any)
+    expect(moved.ok).toBe(true)
+    expect(await db('assignment_assignees').where({ assignment_id: id, user_id: tenor }).first('part', 'notified_at')).toEqual({ part: 'Alto', notified_at: null })
+    expect(await count('jobs')).toBe(jobs + 1)
+    // A second change (the role) does not add them twice.
+    await updateMember(db, ids.choir, tenor, { id: ids.director, ip: null } as any, { role: 'section_leader' } as any)
+    expect(await db('assignment_assignees').where({ assignment_id: id, user_id: tenor }).count({ n: '*' }).first()).toEqual({ n: 1 })
+  })
+})
