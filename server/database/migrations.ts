@@ -10,6 +10,7 @@ import * as m005 from '../../migrations/005_jobs_and_audit'
 import * as m006 from '../../migrations/006_people_settings'
 import * as m007 from '../../migrations/007_accounts_and_admin'
 import * as m008 from '../../migrations/008_drill_versions'
+import * as m010 from '../../migrations/010_review_notes'
 
 interface Migration { up: (knex: Knex) => Promise<void>, down: (knex: Knex) => Promise<void>, config?: { transaction?: boolean } }
 
@@ -22,6 +23,7 @@ export const MIGRATIONS: Record<string, Migration> = {
   '006_people_settings.ts': m006,
   '007_accounts_and_admin.ts': m007,
   '008_drill_versions.ts': m008,
+  '010_review_notes.ts': m010,
 }
 
 /** Knex migration source over MIGRATIONS (pass as `migrationSource` to migrate.latest()). */
