@@ -54,6 +54,9 @@ const MATRIX: Row[] = [
   ['PATCH /api/admin/ensembles/[id]',                401, 403, 403, 403, 403, 403, 200, 401],
   ['GET /api/admin/audit',                           401, 403, 403, 403, 403, 403, 200, 401],
   ['GET /api/admin/audit/facets',                    401, 403, 403, 403, 403, 403, 200, 401],
+  // ---- review ----
+  ['POST /api/takes/[id]/reviews',                   401, 403, 201, 403, 201, 404, 201, 401], // the player's take: never by the player; a new review each
+  ['GET /api/reviews/queue',                         401, 403, 200, 403, 200, 404, 200, 401], // the player's section
 ]
 
 // Routes that landed after the rows above were written and still need their row (and a CALLS
@@ -123,7 +126,7 @@ function readmePeople (): Person[] {
 let app: App
 const cookies = {} as Record<Caller, string>
 const emails = {} as Record<Caller, string>
-const ids = { ensemble: 0, drill: 0, take: 0, mail: '', leaderOther: 0, player: 0 }
+const ids = { ensemble: 0, drill: 0, take: 0, mail: '', leaderOther: 0, player: 0, section: 0 }
 let drillDoc: unknown
 let part = ''
 const audio = triadTake([0, 0, 0]).wav
@@ -175,6 +178,7 @@ beforeAll(async () => {
   const mine = await asJson(await app.fetch('/api/ensembles', { cookie: cookies.director }))
   ids.ensemble = (mine as unknown as Json[]).find(e => e.name === chosen!.player!.ensemble)!.id
   drillDoc = (await asJson(await app.fetch(`/api/drills/${ids.drill}`, { cookie: cookies.director }))).document
+  ids.section = (await asJson(await app.fetch(`/api/ensembles/${ids.ensemble}`, { cookie: cookies.director }))).sections.find((s: Json) => s.name === part).id
   const users = await asJson(await app.fetch(`/api/admin/users?q=${encodeURIComponent(emails.leaderOtherSection)}`, { cookie: cookies.siteAdmin }))
   ids.leaderOther = users.items[0].id
   ids.player = (await asJson(await app.fetch(`/api/admin/users?q=${encodeURIComponent(emails.player)}`, { cookie: cookies.siteAdmin }))).items[0].id
@@ -274,6 +278,9 @@ const CALLS: Record<string, Call> = {
   'PATCH /api/admin/ensembles/[id]': { path: () => `/api/admin/ensembles/${ids.ensemble}`, body: () => ({ archived: false }) },
   'GET /api/admin/audit': { path: () => '/api/admin/audit' },
   'GET /api/admin/audit/facets': { path: () => '/api/admin/audit/facets' },
+  // ---- review ----
+  'POST /api/takes/[id]/reviews': { path: () => `/api/takes/${ids.take}/reviews`, body: () => ({ verdict: 'approved', notes: [{ body: 'Matrix note' }] }), before: ready },
+  'GET /api/reviews/queue': { path: () => `/api/reviews/queue?sectionId=${ids.section}` },
 }
 
 async function callAs (caller: Caller, route: string, call: Call): Promise<number> {
