@@ -16,6 +16,8 @@ const ACTIONS: Record<string, string> = {
   'ensemble.archived': 'Archived an ensemble',
   'ensemble.restored': 'Restored an ensemble',
   'invitation.created': 'Sent an invitation',
+  'review.created': 'Reviewed a take',
+  'review.updated': 'Changed a review',
 }
 
 /** "user.site_admin_granted" → "Made a site admin"; unknown actions become readable words. */
