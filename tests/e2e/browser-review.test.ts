@@ -86,7 +86,7 @@ describe('reviewing a take', () => {
       expect(Math.abs(Number(await moment.inputValue()) - at)).toBeLessThan(0.25)
       await expect.poll(() => panel.getByText(/Hold 2 · /).count()).toBeGreaterThan(0)
 
-      await panel.getByLabel('New note').fill('Lean on the air here: the note sinks at the end.')
+      await panel.getByLabel('New note', { exact: true }).fill('Lean on the air here: the note sinks at the end.')
       await panel.getByRole('button', { name: 'Add the note' }).click()
       await panel.getByRole('radio', { name: 'Approved' }).check()
       await panel.getByLabel('Note on the whole take').fill('Well prepared.')
