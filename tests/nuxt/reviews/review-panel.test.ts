@@ -45,6 +45,15 @@ describe('ReviewPanel', () => {
     expect(w.emitted('save')![0]![0]).toMatchObject({ verdict: 'approved', notes: [{ atS: 6.5, body: 'Hold the E longer.' }] })
   })
 
+  it('takes the hold chosen in the hold table as the place of the next note', async () => {
+    const w = await mountSuspended(ReviewPanel, { props: base })
+    await w.setProps({ hold: { index: 1, n: 1 } })
+    expect((w.find('select').element as HTMLSelectElement).value).toBe('hold-1')
+    await w.setProps({ moment: 6 })
+    await w.setProps({ hold: { index: 1, n: 2 } })
+    expect((w.find('select').element as HTMLSelectElement).value).toBe('hold-1')
+  })
+
   it('says what is missing instead of sending: no verdict, an empty note, a moment after the end', async () => {
     const w = await mountSuspended(ReviewPanel, { props: base })
     await w.find('form').trigger('submit')
