@@ -5,6 +5,8 @@ import { fileURLToPath } from 'node:url'
 // the whole product embedded on loopback: a SQLite file, a local S3-compatible object store
 // and a mail catcher, all under storage/.
 export default defineNuxtConfig({
+  // The development-server test builds into a folder of its own so it never disturbs `.nuxt`.
+  ...(process.env.NUXT_DEV_TEST_BUILD_DIR ? { buildDir: process.env.NUXT_DEV_TEST_BUILD_DIR } : {}),
   compatibilityDate: '2026-11-01',
   devtools: { enabled: false },
   telemetry: false,

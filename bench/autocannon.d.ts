@@ -12,7 +12,11 @@ declare module 'autocannon' {
     }
     interface Histogram { average: number, total: number, p50: number, p90: number, p97_5: number, p99: number }
     interface Result { latency: Histogram, requests: Histogram, non2xx: number, errors: number, timeouts: number }
+    /** A running load: awaitable for its result; 'response' gives each answer's latency in ms. */
+    interface Instance extends PromiseLike<Result> {
+      on (event: 'response', listener: (client: unknown, statusCode: number, resBytes: number, responseTime: number) => void): Instance
+    }
   }
-  function autocannon (opts: autocannon.Options): Promise<autocannon.Result>
+  function autocannon (opts: autocannon.Options): autocannon.Instance
   export = autocannon
 }

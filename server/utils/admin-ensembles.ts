@@ -2,7 +2,7 @@ import type { Knex } from 'knex'
 import type { AdminEnsembleBody, AdminEnsemblesQuery } from '../../shared/schemas/admin'
 import type { AdminEnsemble } from '../../shared/types/admin'
 import { writeAudit } from './audit'
-import { createInvitation } from './invitations'
+import { insertInvitation } from './invitations'
 
 function likeTerm (q: string): string {
   return `%${q.toLowerCase().replace(/[\\%_]/g, '\\$&')}%`
@@ -66,19 +66,15 @@ export async function ensembleNameTaken (db: Knex, name: string): Promise<boolea
 }
 
 /**
- * Creates an ensemble and invites its first director, in one transaction with both audit rows.
- * Returns the ensemble, the invitation and the token to mail.
+ * Creates an ensemble and invites its first director (valid for `ttlMs`), in one transaction with
+ * both audit rows. Returns the ensemble, the invitation and the token to mail.
  */
-export async function createEnsembleWithDirector (db: Knex, actorId: number, body: AdminEnsembleBody, ip: string | null) {
+export async function createEnsembleWithDirector (db: Knex, actorId: number, body: AdminEnsembleBody, ip: string | null, ttlMs: number) {
   return db.transaction(async (trx) => {
     const [row] = await trx('ensembles').insert({ name: body.name, kind: body.kind, created_by: actorId }).returning('id')
     const id = typeof row === 'object' ? (row as { id: number }).id : row as number
     await writeAudit(trx, { actorId, action: 'ensemble.created', subjectType: 'ensemble', subjectId: id, ensembleId: id, ip, after: { name: body.name, kind: body.kind } })
-    const invitation = await createInvitation(trx, { ensembleId: id, email: body.directorEmail, role: 'director', invitedBy: actorId })
-    await writeAudit(trx, {
-      actorId, action: 'invitation.created', subjectType: 'invitation', subjectId: invitation.id, ensembleId: id, ip,
-      after: { email: invitation.email, role: 'director', expiresAt: invitation.expiresAt },
-    })
+    const invitation = await insertInvitation(trx, id, { id: actorId, ip }, { email: body.directorEmail, role: 'director', sectionId: null }, ttlMs)
     return { ensemble: (await findAdminEnsemble(trx, id))!, invitation }
   })
 }

@@ -2,7 +2,7 @@ import type { Knex } from 'knex'
 import type { BulkPreview, BulkRow } from '../../shared/types/ensemble'
 import { checkRows, parseInvitationCsv, type CsvError } from '../../shared/people/invitation-csv'
 import type { Actor } from './ensemble-settings'
-import { insertInvitation, type IssuedInvitation } from './ensemble-invitations'
+import { insertInvitation, type IssuedInvitation } from './invitations'
 
 async function context (db: Knex, ensembleId: number) {
   const sections = await db('sections').where({ ensemble_id: ensembleId }).orderBy('position').select('id', 'name')

@@ -1,6 +1,6 @@
 import type { Knex } from 'knex'
 import type { MemberRole } from '../../shared/types/ensemble'
-import type { IssuedInvitation } from './ensemble-invitations'
+import type { IssuedInvitation } from './invitations'
 import type { OutgoingMail } from './mail'
 import { sendMail } from './mail'
 
@@ -13,8 +13,13 @@ export function invitationTtlMs (): number {
 }
 
 /** The link an invitation mail carries: {baseUrl}/invitations/{token}. */
+export function invitationLink (baseUrl: string, token: string): string {
+  return `${baseUrl.replace(/\/+$/, '')}/invitations/${encodeURIComponent(token)}`
+}
+
+/** The link with the site's own base URL (runtimeConfig.baseUrl). */
 export function invitationUrl (token: string): string {
-  return `${String(useRuntimeConfig().baseUrl).replace(/\/+$/, '')}/invitations/${encodeURIComponent(token)}`
+  return invitationLink(String(useRuntimeConfig().baseUrl), token)
 }
 
 /** The invitation message: plain text holding exactly one link. */

@@ -6,15 +6,41 @@ import type { Actor } from './ensemble-settings'
 
 const ROLE_ORDER = "case m.role when 'director' then 0 when 'section_leader' then 1 else 2 end"
 
+/** What a caller may see of the member list. */
+export interface MemberScope {
+  /** Directors and site admins: addresses shown, and `q` matches them. */
+  withEmail: boolean
+  /** A section leader: their own section only (a leader without a section sees only themselves). */
+  onlySection?: { sectionId: number | null, userId: number }
+}
+
+/** The pitch a member reads: the membership's own setting, else the account's default. */
+const READS = "coalesce(m.reads, u.pitch_view, 'concert')"
+
+function toItem (r: Record<string, any>, withEmail: boolean): MemberItem {
+  const item: MemberItem = {
+    userId: r.user_id, name: r.name, role: r.role as MemberRole, sectionId: r.section_id ?? null,
+    section: r.section ?? null, instrument: r.instrument ?? null, reads: (r.reads === 'written' ? 'written' : 'concert') as Reading,
+    readsFromAccount: r.own_reads == null,
+  }
+  if (withEmail) item.email = r.email
+  return item
+}
+
 /**
- * One page of an ensemble's members. `withEmail` (directors and site admins) adds addresses and
- * lets `q` match them; everyone else searches names only and never sees an address.
+ * One page of an ensemble's members. Only `scope.withEmail` adds addresses and lets `q` match
+ * them; everyone else searches names only and never sees an address.
  */
-export async function listMembers (db: Knex, ensembleId: number, query: MembersQuery, withEmail: boolean): Promise<MemberPage> {
+export async function listMembers (db: Knex, ensembleId: number, query: MembersQuery, scope: MemberScope): Promise<MemberPage> {
+  const { withEmail, onlySection } = scope
   const base = db('memberships as m')
     .join('users as u', 'u.id', 'm.user_id')
     .leftJoin('sections as s', 's.id', 'm.section_id')
     .where('m.ensemble_id', ensembleId)
+  if (onlySection) {
+    if (onlySection.sectionId == null) base.where('m.user_id', onlySection.userId)
+    else base.where('m.section_id', onlySection.sectionId)
+  }
   if (query.q) {
     const like = `%${query.q.toLowerCase().replace(/[\\%_]/g, c => `\\${c}`)}%`
     base.where((w) => {
@@ -28,8 +54,8 @@ export async function listMembers (db: Knex, ensembleId: number, query: MembersQ
 
   const total = Number((await base.clone().count({ n: '*' }).first())?.n ?? 0)
   const dir = query.dir === 'desc' ? 'desc' : 'asc'
-  const q = base.clone().select('m.user_id', 'u.name', 'u.email', 'm.role', 'm.section_id', 's.name as section', 'm.reads',
-    db.raw('coalesce(m.instrument, s.instrument) as instrument'))
+  const q = base.clone().select('m.user_id', 'u.name', 'u.email', 'm.role', 'm.section_id', 's.name as section', 'm.reads as own_reads',
+    db.raw(`${READS} as reads`), db.raw('coalesce(m.instrument, s.instrument) as instrument'))
   switch (query.sort) {
     case 'role': q.orderByRaw(`${ROLE_ORDER} ${dir}`); break
     case 'section': q.orderByRaw(`s.position is null, s.position ${dir}`); break
@@ -38,20 +64,18 @@ export async function listMembers (db: Knex, ensembleId: number, query: MembersQ
   }
   q.orderByRaw(`u.name collate nocase ${query.sort === 'name' ? dir : 'asc'}, m.user_id`)
   const rows = await q.limit(query.pageSize).offset((query.page - 1) * query.pageSize)
-  const items = rows.map((r: Record<string, any>): MemberItem => {
-    const item: MemberItem = {
-      userId: r.user_id, name: r.name, role: r.role as MemberRole, sectionId: r.section_id ?? null,
-      section: r.section ?? null, instrument: r.instrument ?? null, reads: (r.reads ?? 'written') as Reading,
-    }
-    if (withEmail) item.email = r.email
-    return item
-  })
-  return { items, total, page: query.page, pageSize: query.pageSize }
+  const items = rows.map((r: Record<string, any>) => toItem(r, withEmail))
+  let only: MemberPage['onlySection'] = null
+  if (onlySection) {
+    const section = onlySection.sectionId == null ? null : await db('sections').where({ id: onlySection.sectionId }).first('name')
+    only = { sectionId: onlySection.sectionId, section: section?.name ?? null }
+  }
+  return { items, total, page: query.page, pageSize: query.pageSize, onlySection: only }
 }
 
 export type MemberChange = { ok: true, member: MemberItem } | { ok: false, code: 'not_found' | 'section_not_found' | 'last_director' }
 
-interface MembershipRow { id: number, user_id: number, role: MemberRole, section_id: number | null, instrument: string | null, reads: Reading }
+interface MembershipRow { id: number, user_id: number, role: MemberRole, section_id: number | null, instrument: string | null, reads: Reading | null }
 
 async function otherDirectors (trx: Knex, ensembleId: number, userId: number): Promise<number> {
   const r = await trx('memberships').where({ ensemble_id: ensembleId, role: 'director' }).whereNot({ user_id: userId }).count({ n: '*' }).first()
@@ -61,8 +85,9 @@ async function otherDirectors (trx: Knex, ensembleId: number, userId: number): P
 async function memberItem (db: Knex, ensembleId: number, userId: number): Promise<MemberItem> {
   const row = await db('memberships as m').join('users as u', 'u.id', 'm.user_id').leftJoin('sections as s', 's.id', 'm.section_id')
     .where({ 'm.ensemble_id': ensembleId, 'm.user_id': userId })
-    .first('m.user_id', 'u.name', 'u.email', 'm.role', 'm.section_id', 's.name as section', 'm.reads', db.raw('coalesce(m.instrument, s.instrument) as instrument'))
-  return { userId: row.user_id, name: row.name, role: row.role, sectionId: row.section_id ?? null, section: row.section ?? null, instrument: row.instrument ?? null, reads: row.reads ?? 'written', email: row.email }
+    .first('m.user_id', 'u.name', 'u.email', 'm.role', 'm.section_id', 's.name as section', 'm.reads as own_reads',
+      db.raw(`${READS} as reads`), db.raw('coalesce(m.instrument, s.instrument) as instrument'))
+  return toItem(row, true)
 }
 
 /** Changes a member's role, section, instrument or reading; the last director cannot step down. */

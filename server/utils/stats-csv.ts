@@ -7,16 +7,20 @@ import { forEachHoldBatch, type CsvHoldRow, type HoldFilters, type Scoring } fro
 
 export const HOLDS_CSV_HEADER = ['take_id', 'submitted_at', 'player', 'section', 'drill', 'part', 'hold', 'note', 'member', 'target_hz', 'detected_hz', 'cents_from_target', 'cents_from_equal', 'within_tolerance']
 
-const round = (v: number | null, digits: number) => (v == null ? null : Number(v.toFixed(digits)))
+/** A number rounded to `digits` places as CSV text (numbers never need quoting). */
+const num = (v: number | null, digits: number) => (v == null || !Number.isFinite(v) ? '' : String(Number(v.toFixed(digits))))
 
-/** One CSV record of a hold; `hold` is the chord's number in the drill (from 1), as on the take report. */
-export function holdCsvRecord(h: CsvHoldRow): string {
-  return csvLine([
-    csvField(h.takeId), csvField(h.submittedAt), csvField(h.player, true), csvField(h.section, true), csvField(h.drill, true),
-    csvField(h.part, true), csvField(h.chordIndex + 1), csvField(h.note), csvField(h.member),
-    csvField(round(h.targetHz, 4)), csvField(round(h.detectedHz, 4)), csvField(round(h.centsFromTarget, 3)),
-    csvField(round(h.centsFromEqual, 3)), csvField(h.withinTolerance),
-  ])
+/** The fields a take's holds share (take, time, player, section, drill, part), with the comma after them. */
+export function takeCsvPrefix(h: CsvHoldRow): string {
+  return `${[csvField(h.takeId), csvField(h.submittedAt), csvField(h.player, true), csvField(h.section, true), csvField(h.drill, true), csvField(h.part, true)].join(',')},`
+}
+
+/**
+ * One CSV record of a hold; `hold` is the chord's number in the drill (from 1), as on the take
+ * report. `prefix` is `takeCsvPrefix` of the same take, passed in when many holds share it.
+ */
+export function holdCsvRecord(h: CsvHoldRow, prefix = takeCsvPrefix(h)): string {
+  return `${prefix}${h.chordIndex + 1},${csvField(h.note)},${csvField(h.member)},${num(h.targetHz, 4)},${num(h.detectedHz, 4)},${num(h.centsFromTarget, 3)},${num(h.centsFromEqual, 3)},${h.withinTolerance}\r\n`
 }
 
 function drainOrClose(res: ServerResponse): Promise<void> {
@@ -40,12 +44,15 @@ export async function writeHoldsCsv(db: Knex, res: ServerResponse, f: HoldFilter
     await write(csvLine(HOLDS_CSV_HEADER))
     await forEachHoldBatch(db, f, s, async (_takes, rows) => {
       let chunk = ''
+      let takeId = -1
+      let prefix = ''
       for (const r of rows) {
-        chunk += holdCsvRecord(r)
+        if (r.takeId !== takeId) { takeId = r.takeId; prefix = takeCsvPrefix(r) }
+        chunk += holdCsvRecord(r, prefix)
         if (chunk.length > 64_000) { await write(chunk); chunk = '' }
       }
       if (chunk) await write(chunk)
-    })
+    }, { csv: true })
   } catch (err) {
     // The header is out, so no error status can follow: cut the body short (the client sees an
     // incomplete file rather than a complete-looking one) and log the cause.

@@ -77,6 +77,6 @@ async function computeStats (db: Knex, f: HoldFilters, s: Scoring) {
   const { notRescored } = await forEachHoldBatch(db, f, s, (takes, rows) => {
     for (const t of takes) b.addTake(t)
     for (const r of rows) b.add(r)
-  }, 2000)
+  }, { batchTakes: 2000 })
   return { ...b.result(), notRescored }
 }

@@ -9,7 +9,7 @@ import { computeTargets } from '../../shared/tuning/index'
 import type { TargetsResult } from '../../shared/tuning/index'
 import { scoreMeasurement } from '../analysis/score'
 import type { Measurement } from '../analysis/types'
-import { loadDrill } from './drills'
+import { loadDrillVersion } from './drill-edits'
 
 /** What the rows are limited to (already authorised by the route). */
 export interface HoldFilters {
@@ -76,13 +76,17 @@ export function needsRescore (s: Scoring): boolean {
 
 /**
  * Calls `onBatch` with each batch of takes and their scored holds (found, not wrong notes) in take order, keyset-paged
- * so a large export never holds the whole result nor blocks other requests for long.
- * Returns the number of takes that could not be re-scored (their drill changed since).
+ * so a large export never holds the whole result nor blocks other requests for long. Without
+ * `csv`, holds from the stored results carry only what the statistics use (no note, frequencies
+ * or cents from equal).
+ * Re-scoring uses the drill as it was when each take was recorded. Returns the number of takes
+ * that could not be re-scored (that version of the drill is no longer stored or its targets fail).
  */
-export async function forEachHoldBatch (db: Knex, f: HoldFilters, scoring: Scoring, onBatch: (takes: StatTakeRow[], rows: CsvHoldRow[]) => void | Promise<void>, batchTakes = 400): Promise<{ notRescored: number }> {
+export async function forEachHoldBatch (db: Knex, f: HoldFilters, scoring: Scoring, onBatch: (takes: StatTakeRow[], rows: CsvHoldRow[]) => void | Promise<void>, options: { batchTakes?: number, csv?: boolean } = {}): Promise<{ notRescored: number }> {
+  const batchTakes = options.batchTakes ?? 1000
   let afterId = 0
   let notRescored = 0
-  const targetsCache = new Map<number, { version: number, targets: TargetsResult } | null>()
+  const targetsCache = new Map<string, TargetsResult | null>()
   for (;;) {
     const base = takeQuery(db, f).andWhere('t.id', '>', afterId).orderBy('t.id').limit(batchTakes)
     if (needsRescore(scoring)) {
@@ -92,11 +96,11 @@ export async function forEachHoldBatch (db: Knex, f: HoldFilters, scoring: Scori
       const rows: CsvHoldRow[] = []
       const scored: StatTakeRow[] = []
       for (const t of takes) {
-        const targets = await targetsFor(db, targetsCache, t.drillId, scoring)
-        if (!targets || targets.version !== t.drillVersion || !t.measurement) { notRescored++; continue }
+        const targets = await targetsFor(db, targetsCache, t.drillId, t.drillVersion, scoring)
+        if (!targets || !t.measurement) { notRescored++; continue }
         const measurement = JSON.parse(t.measurement) as Measurement
         let report
-        try { report = scoreMeasurement(measurement, targets.targets, t.part, scoring.tolerance ?? t.storedTolerance) } catch { notRescored++; continue }
+        try { report = scoreMeasurement(measurement, targets, t.part, scoring.tolerance ?? t.storedTolerance) } catch { notRescored++; continue }
         scored.push({ takeId: t.takeId, submittedAt: t.submittedAt, userId: t.userId, player: t.player, section: t.section ?? null, drillId: t.drillId, part: t.part })
         report.holds.forEach((h, i) => {
           if (h.centsFromTarget == null || h.centsFromEqual == null || Math.abs(h.centsFromEqual) > WRONG_NOTE_CENTS) return
@@ -111,40 +115,42 @@ export async function forEachHoldBatch (db: Knex, f: HoldFilters, scoring: Scori
       await onBatch(scored, rows)
       continue
     }
-    // The stored results: one query per batch of takes, run on the raw connection (positional
-    // rows, no per-row mapping by the query builder) — the whole ensemble's year is ~300,000 rows.
-    const idRows = await rawRows(db, base.select('t.id'))
-    if (!idRows.length) break
-    const first = idRows[0]![0] as number
-    afterId = idRows[idRows.length - 1]![0] as number
-    const rows = await rawRows(db, takeQuery(db, f)
+    // The stored results: per batch of takes, one query for the takes and one for their holds,
+    // run on the raw connection (positional rows, no per-row mapping by the query builder). The
+    // take's names and dates come once per take, not once per hold: the whole ensemble's year is
+    // ~300,000 holds, and turning repeated text into strings was most of the cost.
+    const takeRows = await rawRows(db, base.clone().select(['t.id', 't.created_at', 't.user_id', 'u.name', 's.name', 't.drill_id', 't.part', 'd.title']))
+    if (!takeRows.length) break
+    const first = takeRows[0]![0] as number
+    afterId = takeRows[takeRows.length - 1]![0] as number
+    const holdRows = await rawRows(db, takeQuery(db, f)
       .andWhere('t.id', '>=', first).andWhere('t.id', '<=', afterId)
-      .leftJoin('hold_results as h', function () {
+      .join('hold_results as h', function () {
         this.on('h.analysis_id', 'a.id').andOnNotNull('h.cents_from_target')
           .andOn(db.raw('abs(coalesce(h.cents_from_equal, 0)) <= ?', [WRONG_NOTE_CENTS]))
       })
-      .select(['t.id', 't.created_at', 't.user_id', 'u.name', 's.name', 't.drill_id', 't.part', 'd.title',
-        'h.hold_index', 'h.chord_index', 'h.member', 'h.note', 'h.target_hz', 'h.detected_hz',
-        'h.cents_from_target', 'h.cents_from_equal', 'h.within_tolerance'])
+      .select(options.csv
+        ? ['t.id', 'h.hold_index', 'h.chord_index', 'h.member', 'h.cents_from_target', 'h.within_tolerance', 'h.note', 'h.target_hz', 'h.detected_hz', 'h.cents_from_equal']
+        : ['t.id', 'h.hold_index', 'h.chord_index', 'h.member', 'h.cents_from_target', 'h.within_tolerance'])
       .orderBy('t.id').orderBy('h.hold_index'))
     const tol = scoring.tolerance
-    const takes: StatTakeRow[] = []
+    const takes: Array<StatTakeRow & { drill: string }> = takeRows.map(r => ({
+      takeId: r[0] as number, submittedAt: r[1] as string, userId: r[2] as number, player: r[3] as string,
+      section: (r[4] as string | null) ?? null, drillId: r[5] as number, part: r[6] as string, drill: r[7] as string,
+    }))
+    const byId = new Map(takes.map(t => [t.takeId, t]))
     const holds: CsvHoldRow[] = []
-    let lastTake = 0
-    for (const r of rows) {
-      const takeId = r[0] as number
-      if (takeId !== lastTake) {
-        lastTake = takeId
-        takes.push({ takeId, submittedAt: r[1] as string, userId: r[2] as number, player: r[3] as string, section: (r[4] as string | null) ?? null, drillId: r[5] as number, part: r[6] as string })
-      }
-      if (r[14] == null) continue
-      const cents = r[14] as number
+    for (const r of holdRows) {
+      const t = byId.get(r[0] as number)
+      if (!t) continue
+      const cents = r[4] as number
       holds.push({
-        takeId, submittedAt: r[1] as string, userId: r[2] as number, player: r[3] as string, section: (r[4] as string | null) ?? null,
-        drillId: r[5] as number, part: r[6] as string, drill: r[7] as string, holdIndex: r[8] as number, chordIndex: r[9] as number,
-        member: (r[10] as string | null) ?? null, note: (r[11] as string | null) ?? null, targetHz: r[12] as number | null,
-        detectedHz: r[13] as number | null, centsFromTarget: cents, centsFromEqual: r[15] as number | null,
-        withinTolerance: tol === undefined ? Boolean(r[16]) : Math.abs(cents) <= tol,
+        takeId: t.takeId, submittedAt: t.submittedAt, userId: t.userId, player: t.player, section: t.section,
+        drillId: t.drillId, part: t.part, drill: t.drill, holdIndex: r[1] as number, chordIndex: r[2] as number,
+        member: (r[3] as string | null) ?? null, centsFromTarget: cents,
+        withinTolerance: tol === undefined ? Boolean(r[5]) : Math.abs(cents) <= tol,
+        note: (r[6] as string | null) ?? null, targetHz: (r[7] as number | null) ?? null,
+        detectedHz: (r[8] as number | null) ?? null, centsFromEqual: (r[9] as number | null) ?? null,
       })
     }
     await onBatch(takes, holds)
@@ -165,17 +171,19 @@ async function rawRows (db: Knex, qb: Knex.QueryBuilder): Promise<unknown[][]> {
 }
 interface RawConnection { prepare: (sql: string) => { raw: (on: boolean) => { all: (...b: unknown[]) => unknown } } }
 
-async function targetsFor (db: Knex, cache: Map<number, { version: number, targets: TargetsResult } | null>, drillId: number, s: Scoring) {
-  if (cache.has(drillId)) return cache.get(drillId)!
-  const drill = await loadDrill(db, drillId)
-  let entry: { version: number, targets: TargetsResult } | null = null
-  if (drill) {
+/** Targets of the drill as it was at `version` (the one the take was recorded against) under the scoring. */
+async function targetsFor (db: Knex, cache: Map<string, TargetsResult | null>, drillId: number, version: number, s: Scoring) {
+  const key = `${drillId}:${version}`
+  if (cache.has(key)) return cache.get(key)!
+  const doc = await loadDrillVersion(db, drillId, version).catch(() => null)
+  let targets: TargetsResult | null = null
+  if (doc) {
     try {
-      entry = { version: drill.version, targets: computeTargets(drill.document, s.system ?? drill.document.system, s.a4 ?? drill.document.a4) }
-    } catch { entry = null }
+      targets = computeTargets(doc, s.system ?? doc.system, s.a4 ?? doc.a4)
+    } catch { targets = null }
   }
-  cache.set(drillId, entry)
-  return entry
+  cache.set(key, targets)
+  return targets
 }
 
 const generations = new WeakMap<Knex, { n: number }>()

@@ -73,7 +73,8 @@ export const MemberPatch = z.object({
   role: z.enum(MEMBER_ROLES, { message: 'Choose director, section leader or player' }),
   sectionId: id.nullable(),
   instrument: instrument.nullable(),
-  reads: z.enum(READINGS, { message: 'Choose concert or written pitch' }),
+  // null: follow the member's account default.
+  reads: z.enum(READINGS, { message: 'Choose concert or written pitch' }).nullable(),
 }).partial().strict().refine(v => Object.keys(v).length > 0, 'Change at least one of role, section, instrument or reading')
 export type MemberPatch = z.infer<typeof MemberPatch>
 

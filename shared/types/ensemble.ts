@@ -48,7 +48,10 @@ export interface MemberItem {
   section: string | null
   /** Instrument id (voice-* for singers); null = the section's usual instrument. */
   instrument: string | null
+  /** The pitch the member reads: their own setting in this ensemble, else their account's default. */
   reads: Reading
+  /** Whether `reads` comes from the account's default (the membership sets none). */
+  readsFromAccount: boolean
   email?: string
 }
 
@@ -59,7 +62,10 @@ export interface Page<T> {
   pageSize: number
 }
 
-export type MemberPage = Page<MemberItem>
+/** A section leader's list holds their own section only; null for everyone else. */
+export interface MemberPage extends Page<MemberItem> {
+  onlySection: { sectionId: number | null, section: string | null } | null
+}
 
 export type InvitationStatus = 'open' | 'accepted' | 'revoked' | 'expired'
 

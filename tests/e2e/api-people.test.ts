@@ -115,7 +115,8 @@ describe('GET /api/ensembles/:id/members', () => {
     const all = await (await app.fetch(`/api/ensembles/${id}/members?pageSize=100`, { cookie: director() })).json()
     const inReadme = accounts.filter(a => a.ensemble === choir.ensemble)
     expect(all.total).toBe(inReadme.length)
-    expect(Object.keys(all.items[0]).sort()).toEqual(['email', 'instrument', 'name', 'reads', 'role', 'section', 'sectionId', 'userId'])
+    expect(Object.keys(all.items[0]).sort()).toEqual(['email', 'instrument', 'name', 'reads', 'readsFromAccount', 'role', 'section', 'sectionId', 'userId'])
+    expect(all.onlySection).toBeNull()
     expect(all.items.map((m: { email: string }) => m.email).sort()).toEqual(inReadme.map(a => a.email).sort())
 
     const p1 = await (await app.fetch(`/api/ensembles/${id}/members?pageSize=5&page=1`, { cookie: director() })).json()
@@ -142,6 +143,63 @@ describe('GET /api/ensembles/:id/members', () => {
     expect((await (await app.fetch(`/api/ensembles/${id}/members?q=example.org`, { cookie: cookies[onlyPlayer.email] })).json()).total).toBe(0)
     expect((await app.fetch(`/api/ensembles/${id}/members`, { cookie: cookies[brassDirector.email] })).status).toBe(404)
     expect((await errorOf(await app.fetch(`/api/ensembles/${id}/members?pageSize=1000`, { cookie: director() }))).status).toBe(400)
+  })
+})
+
+describe('who sees which members', () => {
+  // The issue's rules: section leaders see their own section; players see the names and sections
+  // of their ensemble but never an address (choirs include minors); directors and site admins see addresses.
+  it('gives a section leader their own section only, without addresses', async () => {
+    const all = await (await app.fetch(`/api/ensembles/${id}/members?pageSize=100`, { cookie: director() })).json()
+    const me = all.items.find((m: { email: string }) => m.email === leader.email)
+    expect(me.sectionId).not.toBeNull()
+    const sameSection = all.items.filter((m: { sectionId: number | null }) => m.sectionId === me.sectionId)
+    const r = await app.fetch(`/api/ensembles/${id}/members?pageSize=100`, { cookie: cookies[leader.email] })
+    expect(r.status).toBe(200)
+    const mine = await r.json()
+    expect(mine.onlySection).toEqual({ sectionId: me.sectionId, section: me.section })
+    expect(mine.total).toBe(sameSection.length)
+    expect(mine.items.map((m: { userId: number }) => m.userId).sort()).toEqual(sameSection.map((m: { userId: number }) => m.userId).sort())
+    expect(all.total).toBeGreaterThan(sameSection.length)
+    for (const m of mine.items) expect(m).not.toHaveProperty('email')
+    expect(JSON.stringify(mine)).not.toContain('@example.org')
+    // A search by a name from another section finds nobody; asking for another section is refused by name.
+    const outsider = all.items.find((m: { sectionId: number | null }) => m.sectionId !== me.sectionId && m.sectionId !== null)
+    const found = await (await app.fetch(`/api/ensembles/${id}/members?q=${encodeURIComponent(outsider.name)}`, { cookie: cookies[leader.email] })).json()
+    expect(found.items.filter((m: { userId: number }) => m.userId === outsider.userId)).toEqual([])
+    const other = await errorOf(await app.fetch(`/api/ensembles/${id}/members?sectionId=${outsider.sectionId}`, { cookie: cookies[leader.email] }))
+    expect(other).toMatchObject({ status: 403, data: { code: 'own_section_only' } })
+    expect((await app.fetch(`/api/ensembles/${id}/members?sectionId=${me.sectionId}`, { cookie: cookies[leader.email] })).status).toBe(200)
+  })
+
+  it('gives players every name and section, and directors and site admins the addresses', async () => {
+    const asPlayer = await (await app.fetch(`/api/ensembles/${id}/members?pageSize=100`, { cookie: cookies[onlyPlayer.email] })).json()
+    const asAdmin = await (await app.fetch(`/api/ensembles/${id}/members?pageSize=100`, { cookie: cookies[admin] })).json()
+    expect(asPlayer.onlySection).toBeNull()
+    expect(asPlayer.items.map((m: { userId: number, name: string, section: string | null }) => [m.userId, m.name, m.section]))
+      .toEqual(asAdmin.items.map((m: { userId: number, name: string, section: string | null }) => [m.userId, m.name, m.section]))
+    for (const m of asPlayer.items) expect(m).not.toHaveProperty('email')
+    for (const m of asAdmin.items) expect(m.email).toMatch(/@example\.org$/)
+  })
+
+  it('shows the account\'s concert or written choice wherever the membership sets none', async () => {
+    const cookie = cookies[onlyPlayer.email]!
+    const row = async () => (await (await app.fetch(`/api/ensembles/${id}/members?pageSize=100`, { cookie: director() })).json()).items
+      .find((m: { email: string }) => m.email === onlyPlayer.email)
+    const start = await row()
+    if (!start.readsFromAccount) await app.fetch(`/api/ensembles/${id}/members/${start.userId}`, json('PATCH', { reads: null }, director()))
+    for (const view of ['written', 'concert'] as const) {
+      expect((await app.fetch('/api/account', json('PATCH', { pitchView: view }, cookie))).status).toBe(200)
+      expect(await row()).toMatchObject({ reads: view, readsFromAccount: true })
+    }
+    // The director's setting for this ensemble wins over the account, until it is cleared again.
+    await app.fetch(`/api/ensembles/${id}/members/${start.userId}`, json('PATCH', { reads: 'written' }, director()))
+    expect(await row()).toMatchObject({ reads: 'written', readsFromAccount: false })
+    const cleared = await app.fetch(`/api/ensembles/${id}/members/${start.userId}`, json('PATCH', { reads: null }, director()))
+    expect(await cleared.json()).toMatchObject({ reads: 'concert', readsFromAccount: true })
+    const bad = await errorOf(await app.fetch(`/api/ensembles/${id}/members/${start.userId}`, json('PATCH', { reads: 'sounding' }, director())))
+    expect(bad).toMatchObject({ status: 400 })
+    expect(bad.data.issues[0]).toMatchObject({ path: ['reads'] })
   })
 })
 

@@ -4,7 +4,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
 import { demoAccounts, demoPassword, launchBrowser, startApp, type App } from './harness'
-import { withDb } from './people-helpers'
 
 let app: App
 let browser: Browser
@@ -43,6 +42,7 @@ describe('inviting a singer through the pages', () => {
     await dir.goto(`${app.url}/ensembles`)
     await dir.getByRole('link', { name: director.ensemble }).click()
     await dir.getByRole('heading', { level: 1, name: director.ensemble }).waitFor()
+    const dirUrl = dir.url()
     await dir.getByRole('navigation', { name: 'Ensemble' }).getByRole('link', { name: 'Invitations' }).click()
     await dir.waitForURL(/\/invitations$/)
 
@@ -122,14 +122,35 @@ describe('inviting a singer through the pages', () => {
     await expect.poll(() => row.textContent(), { timeout: 10_000 }).toContain('Section leader')
     await dirCtx.close()
 
-    // The audit log: the invitation accepted (membership created) and the role change, with before and after.
-    const rows = withDb(app, db => db.prepare(`select a.action, a.data, u.email as actor from audit_log a left join users u on u.id = a.actor_id
-      where a.action in ('invitation.created', 'invitation.accepted', 'member.role_changed') order by a.id`).all() as { action: string, data: string, actor: string }[])
-    const entries = rows.map(r => ({ action: r.action, actor: r.actor, ...JSON.parse(r.data) as { before: unknown, after: Record<string, unknown> } }))
-    expect(entries.find(e => e.action === 'invitation.created' && e.after.email === singer.email)?.actor).toBe(director.email)
-    const accepted = entries.find(e => e.action === 'invitation.accepted' && e.actor === singer.email)
-    expect(accepted?.after).toMatchObject({ role: 'player' })
-    expect(entries.filter(e => e.action === 'member.role_changed').at(-1)).toMatchObject({ actor: director.email, before: { role: 'player' }, after: { role: 'section_leader' } })
+    // The audit log, as the site admin reads it (GET /api/admin/audit): the invitation sent, the
+    // invitation accepted (the membership created) and the role change, with before and after.
+    const adminCookie = await app.login(admin)
+    const ensembleId = Number(/\/ensembles\/(\d+)/.exec(dirUrl)![1])
+    const idOf = async (email: string) => (await (await app.fetch(`/api/admin/users?q=${encodeURIComponent(email)}`, { cookie: adminCookie })).json()).items[0].id as number
+    const [directorId, singerId] = [await idOf(director.email), await idOf(singer.email)]
+    type Entry = { action: string, actorId: number | null, actor: string | null, ensembleId: number | null, target: { type: string, id: number } | null, before: any, after: any }
+    const audit = async (action: string): Promise<Entry[]> => {
+      const r = await app.fetch(`/api/admin/audit?action=${action}&ensembleId=${ensembleId}`, { cookie: adminCookie })
+      expect(r.status).toBe(200)
+      return (await r.json()).items
+    }
+    const invitations = await audit('invitation')
+    expect(invitations.find(e => e.action === 'invitation.created' && e.after?.email === singer.email)).toMatchObject({ actorId: directorId, ensembleId })
+    expect(invitations.find(e => e.action === 'invitation.accepted' && e.actorId === singerId)).toMatchObject({ actor: singer.name, after: { role: 'player', userId: singerId } })
+    const roles = await audit('member.role_changed')
+    expect(roles[0]).toMatchObject({ actorId: directorId, target: { type: 'user', id: singerId }, before: { role: 'player' }, after: { role: 'section_leader' } })
+    // The audit log is the site admin's only.
+    expect((await app.fetch('/api/admin/audit', { cookie: await app.login(director.email) })).status).toBe(403)
+
+    // The same rows on the admin's audit page, on a phone.
+    const auditCtx = await browser.newContext({ viewport: { width: 390, height: 844 } })
+    const ap = await auditCtx.newPage()
+    await signIn(ap, admin)
+    await ap.goto(`${app.url}/admin/audit?action=member&ensembleId=${ensembleId}`)
+    await ap.getByRole('heading', { level: 1 }).waitFor()
+    await expect.poll(async () => (await ap.locator('main').textContent()) ?? '', { timeout: 10_000 }).toContain(singer.name)
+    expect(await fitsWidth(ap)).toBe(true)
+    await auditCtx.close()
   })
 })
 
@@ -169,5 +190,64 @@ describe('the ensemble screens at phone width', () => {
     expect(await page.getByRole('table').textContent()).toContain('"nomail" is not an e-mail address')
     expect(await fitsWidth(page)).toBe(true)
     await ctx.close()
+  })
+})
+
+describe('who sees which members, and the reading, at phone width', () => {
+  it('shows a section leader their own section only, and the reading a player picks on the account page on the director\'s members page', async () => {
+    const dirCookie = await app.login(director.email)
+    const ensembleId = ((await (await app.fetch('/api/ensembles', { cookie: dirCookie })).json()) as { id: number, name: string }[]).find(e => e.name === director.ensemble)!.id
+    const all = (await (await app.fetch(`/api/ensembles/${ensembleId}/members?pageSize=100`, { cookie: dirCookie })).json()).items as { userId: number, name: string, email: string, role: string, section: string | null, sectionId: number | null }[]
+    const leader = accounts.find(a => a.role === 'section leader' && a.ensemble === director.ensemble && all.find(m => m.email === a.email)?.sectionId != null)!
+    const section = all.find(m => m.email === leader.email)!.section!
+    const inSection = all.filter(m => m.section === section)
+    const outside = all.find(m => m.section !== section)!
+
+    // The issue's rule: section leaders see their section, without addresses.
+    const ctx = await browser.newContext({ viewport: { width: 390, height: 844 } })
+    const page = await ctx.newPage()
+    await signIn(page, leader.email)
+    await page.goto(`${app.url}/ensembles/${ensembleId}/members`)
+    await page.getByText(`As section leader you see the ${section} section.`).waitFor()
+    await page.getByRole('table').waitFor()
+    const table = (await page.getByRole('table').textContent()) ?? ''
+    for (const m of inSection) expect(table).toContain(m.name)
+    expect(table).not.toContain(outside.name)
+    expect(table).not.toContain('@example.org')
+    expect(await page.getByLabel('Section', { exact: true }).count()).toBe(0) // no filter to choose another section
+    expect(await fitsWidth(page)).toBe(true)
+    await ctx.close()
+
+    // A player picks written pitch on the account page; the director's members page shows it as their choice.
+    const player = accounts.find(a => a.role === 'player' && a.ensemble === director.ensemble && accounts.every(o => o.email !== a.email || o.role === 'player'))!
+    const pctx = await browser.newContext({ viewport: { width: 390, height: 844 } })
+    const pp = await pctx.newPage()
+    await signIn(pp, player.email)
+    await pp.goto(`${app.url}/account`)
+    await pp.getByText('Each ensemble uses this unless its director sets another reading for you there.').waitFor()
+    await pp.getByLabel('Written pitch (as printed for my instrument)').check()
+    await pp.getByRole('button', { name: 'Save profile' }).click()
+    await pp.getByText('Profile saved.').waitFor()
+    expect(await fitsWidth(pp)).toBe(true)
+    await pctx.close()
+
+    const name = all.find(m => m.email === player.email)!.name
+    const dctx = await browser.newContext({ viewport: { width: 390, height: 844 } })
+    const dp = await dctx.newPage()
+    await signIn(dp, director.email)
+    await dp.goto(`${app.url}/ensembles/${ensembleId}/members`)
+    await dp.getByLabel('Search').fill(name)
+    const row = dp.getByRole('row').filter({ hasText: name })
+    await expect.poll(() => row.first().textContent(), { timeout: 10_000 }).toContain("reads written pitch (their account's choice)")
+    // The director sets concert pitch for this ensemble: it wins over the account's choice.
+    await row.first().getByRole('button', { name: `Edit ${name}` }).click()
+    const editor = dp.getByRole('form', { name: `Edit ${name}` })
+    expect(await editor.getByLabel("Their account's choice (now written pitch)").isChecked()).toBe(true)
+    await editor.getByLabel('Concert pitch', { exact: true }).check()
+    await editor.getByRole('button', { name: 'Save' }).click()
+    await expect.poll(() => row.first().textContent(), { timeout: 10_000 }).toContain('reads concert pitch')
+    expect(await row.first().textContent()).not.toContain("their account's choice")
+    expect(await fitsWidth(dp)).toBe(true)
+    await dctx.close()
   })
 })

@@ -270,3 +270,23 @@ describe('GET /api/ensembles/:id/holds.csv', () => {
     expect((await app.fetch(`/api/ensembles/${ensembleId}/holds.csv`)).status).toBe(401)
   })
 })
+
+describe('re-scoring after a drill is edited', () => {
+  // Runs last: it saves a new version of one drill. A take is re-scored against the drill as it
+  // was when the take was recorded, so moving the drill's own A4 afterwards changes nothing.
+  it('uses the version each take was recorded against', async () => {
+    const query = '?system=equal'
+    const before = await (await stats(query)).json()
+    const drillId = takes[0]!.drill.id
+    const drill = await (await app.fetch(`/api/drills/${drillId}`, { cookie: director })).json() as { version: number, document: { a4: number } }
+    const put = await app.fetch(`/api/drills/${drillId}`, {
+      method: 'PUT', cookie: director, headers: { 'content-type': 'application/json' },
+      body: JSON.stringify({ document: { ...drill.document, a4: drill.document.a4 === 415 ? 440 : 415 }, version: drill.version }),
+    })
+    expect(put.status).toBe(200)
+    const after = await (await stats(query)).json()
+    expect(after.holds).toBe(before.holds)
+    expect(after.members).toEqual(before.members)
+    expect(after.players).toEqual(before.players)
+  })
+})

@@ -69,12 +69,12 @@ registerEndpoint('/api/ensembles/9/members/3', {
     const body = await readBody<Record<string, unknown>>(event)
     patches.push(body)
     if (body.role === 'player') throw createError({ statusCode: 409, statusMessage: 'The ensemble needs at least one director: make someone else director first', data: { code: 'last_director' } })
-    return { userId: 3, name: 'Dee', role: 'director', sectionId: null, section: null, instrument: 'voice-alto', reads: 'written' }
+    return { userId: 3, name: 'Dee', role: 'director', sectionId: null, section: null, instrument: 'voice-alto', reads: 'written', readsFromAccount: false }
   },
 })
 
 describe('the member editor', () => {
-  const member = { userId: 3, name: 'Dee', role: 'director' as const, sectionId: null, section: null, instrument: null, reads: 'written' as const, email: 'dee@example.org' }
+  const member = { userId: 3, name: 'Dee', role: 'director' as const, sectionId: null, section: null, instrument: null, reads: 'written' as const, readsFromAccount: false, email: 'dee@example.org' }
 
   it('sends only what changed and shows the server\'s reason when it refuses', async () => {
     const w = await mountSuspended(MemberEditor, { props: { member, sections: [], ensembleId: 9 } })
@@ -90,5 +90,20 @@ describe('the member editor', () => {
     await w.find('form').trigger('submit')
     await vi.waitFor(() => expect(w.emitted('saved')).toHaveLength(1), { timeout: 5000 })
     expect(patches.at(-1)).toEqual({ instrument: 'voice-alto' })
+  })
+
+  it('offers the account\'s own choice and sends it as an unset reading', async () => {
+    const w = await mountSuspended(MemberEditor, { props: { member, sections: [], ensembleId: 9 } })
+    const account = w.find('input[type="radio"][value="account"]')
+    expect((account.element as HTMLInputElement).checked).toBe(false)
+    expect((w.find('input[type="radio"][value="written"]').element as HTMLInputElement).checked).toBe(true)
+    await account.setValue(true)
+    await w.find('form').trigger('submit')
+    await vi.waitFor(() => expect(w.emitted('saved')).toHaveLength(1), { timeout: 5000 })
+    expect(patches.at(-1)).toEqual({ reads: null })
+
+    const following = await mountSuspended(MemberEditor, { props: { member: { ...member, reads: 'concert' as const, readsFromAccount: true }, sections: [], ensembleId: 9 } })
+    expect((following.find('input[type="radio"][value="account"]').element as HTMLInputElement).checked).toBe(true)
+    expect(following.text()).toContain('now concert pitch')
   })
 })

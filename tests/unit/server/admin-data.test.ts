@@ -9,9 +9,11 @@ import { createEnsembleWithDirector, listAdminEnsembles, setEnsembleArchived } f
 import { listAuditPage, writeAudit } from '../../../server/utils/audit'
 import { hashToken } from '../../../server/utils/accounts'
 import { findProfile, updateProfile } from '../../../server/utils/profile'
-import { invitationLink, invitationMail } from '../../../server/utils/invitations'
+import { ensembleInvitationMail, invitationLink } from '../../../server/utils/invitation-mail'
 
 let db: Knex
+/** Invitations stay open for 7 days (the issue's default). */
+const WEEK = 7 * 86_400_000
 let adminId: number
 beforeEach(async () => {
   db = createKnex(':memory:')
@@ -76,7 +78,7 @@ describe('changeUser', () => {
 
 describe('ensembles', () => {
   it('creates one with a director invitation whose token is stored only as its SHA-256', async () => {
-    const { ensemble, invitation } = await createEnsembleWithDirector(db, adminId, { name: 'Tidewater Singers', kind: 'choir', directorEmail: 'lead@example.org' }, null)
+    const { ensemble, invitation } = await createEnsembleWithDirector(db, adminId, { name: 'Tidewater Singers', kind: 'choir', directorEmail: 'lead@example.org' }, null, WEEK)
     expect(ensemble).toMatchObject({ name: 'Tidewater Singers', kind: 'choir', archived: false, directors: [], pendingDirectorInvitations: ['lead@example.org'] })
     const row = await db('invitations').where({ id: invitation.id }).first()
     // node:crypto as the reference implementation of SHA-256.
@@ -87,14 +89,18 @@ describe('ensembles', () => {
     expect(days).toBeLessThanOrEqual(7)
     const link = invitationLink('https://drift.example.org/', invitation.token)
     expect(link).toBe(`https://drift.example.org/invitations/${invitation.token}`)
-    const mail = invitationMail('lead@example.org', 'Tidewater <Singers>', 'director', link, 'Ada Admin')
-    expect(new Set([...`${mail.text} ${mail.html}`.matchAll(/https?:\/\/[^\s"<>]+/g)].map(m => m[0]))).toEqual(new Set([link]))
-    expect(mail.html).toContain('Tidewater &lt;Singers&gt;')
+    const mail = ensembleInvitationMail('lead@example.org', { name: null, ensemble: 'Tidewater Singers', inviter: 'Ada Admin', role: 'director', section: null, link, expiresAt: invitation.expiresAt })
+    expect([...`${mail.text} ${mail.html ?? ''}`.matchAll(/https?:\/\/[^\s"<>]+/g)].map(m => m[0])).toEqual([link])
+    expect(mail.text).toContain('Ada Admin invites you to join Tidewater Singers on Driftline as a director')
+    // The invitation and its audit row are one change; the audit row never holds the token.
+    const audit = await db('audit_log').where({ action: 'invitation.created', subject_id: invitation.id }).first()
+    expect(audit).toBeTruthy()
+    expect(JSON.stringify(audit)).not.toContain(invitation.token)
   })
 
   it('archives and restores, listing open ones first', async () => {
-    const a = (await createEnsembleWithDirector(db, adminId, { name: 'Alpha Band', kind: 'choir', directorEmail: 'a@example.org' }, null)).ensemble
-    await createEnsembleWithDirector(db, adminId, { name: 'Beta Band', kind: 'choir', directorEmail: 'b@example.org' }, null)
+    const a = (await createEnsembleWithDirector(db, adminId, { name: 'Alpha Band', kind: 'choir', directorEmail: 'a@example.org' }, null, WEEK)).ensemble
+    await createEnsembleWithDirector(db, adminId, { name: 'Beta Band', kind: 'choir', directorEmail: 'b@example.org' }, null, WEEK)
     expect((await setEnsembleArchived(db, adminId, a.id, true, null))!.archived).toBe(true)
     const list = await listAdminEnsembles(db, { archived: 'all', page: 1, pageSize: 25 })
     expect(list.items.map(e => e.name)).toEqual(['Beta Band', 'Alpha Band'])

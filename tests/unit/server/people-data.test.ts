@@ -5,7 +5,7 @@ import { createKnex } from '../../../server/database/knex'
 import { migrateLatest } from '../../../server/database/migrations'
 import { mergeSections, removeSection, reorderSections, createSection, updateSection } from '../../../server/utils/sections'
 import { listMembers, removeMember, updateMember } from '../../../server/utils/members'
-import { acceptInvitation, inviteToEnsemble, findInvitationByToken, resendInvitation } from '../../../server/utils/ensemble-invitations'
+import { acceptInvitation, inviteToEnsemble, findInvitationByToken, resendInvitation } from '../../../server/utils/invitations'
 import { mergeSystem, storedSystem } from '../../../server/utils/ensemble-settings'
 import { hashToken } from '../../../server/utils/accounts'
 
@@ -76,16 +76,16 @@ describe('members', () => {
   const q = { sort: 'name' as const, dir: 'asc' as const, page: 1, pageSize: 25, q: undefined, role: undefined, sectionId: undefined }
 
   it('sorts names without regard to case and keeps addresses for directors only', async () => {
-    const page = await listMembers(db, ensembleId, q, false)
+    const page = await listMembers(db, ensembleId, q, { withEmail: false })
     // Case-insensitive order, common practice for a roster ("ann" between nothing and "Bob").
     expect(page.items.map(m => m.name)).toEqual(['ann player', 'Bob Player', 'Cy Player', 'Dee Rector'])
     expect(page.items.every(m => !('email' in m))).toBe(true)
-    expect((await listMembers(db, ensembleId, { ...q, q: 'p1@' }, false)).total).toBe(0)
-    expect((await listMembers(db, ensembleId, { ...q, q: 'p1@' }, true)).items.map(m => m.email)).toEqual(['p1@example.org'])
+    expect((await listMembers(db, ensembleId, { ...q, q: 'p1@' }, { withEmail: false })).total).toBe(0)
+    expect((await listMembers(db, ensembleId, { ...q, q: 'p1@' }, { withEmail: true })).items.map(m => m.email)).toEqual(['p1@example.org'])
     // LIKE wildcards typed by a user match themselves only.
-    expect((await listMembers(db, ensembleId, { ...q, q: '%' }, true)).total).toBe(0)
-    expect((await listMembers(db, ensembleId, { ...q, sort: 'role' }, true)).items.map(m => m.role)).toEqual(['director', 'section_leader', 'player', 'player'])
-    expect((await listMembers(db, ensembleId, { ...q, sectionId: 'none' }, true)).items.map(m => m.role)).toEqual(['director'])
+    expect((await listMembers(db, ensembleId, { ...q, q: '%' }, { withEmail: true })).total).toBe(0)
+    expect((await listMembers(db, ensembleId, { ...q, sort: 'role' }, { withEmail: true })).items.map(m => m.role)).toEqual(['director', 'section_leader', 'player', 'player'])
+    expect((await listMembers(db, ensembleId, { ...q, sectionId: 'none' }, { withEmail: true })).items.map(m => m.role)).toEqual(['director'])
   })
 
   it('never removes or demotes the last director', async () => {

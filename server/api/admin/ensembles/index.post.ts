@@ -9,10 +9,9 @@ export default defineEventHandler(async (event) => {
   if (await ensembleNameTaken(db, body.name)) {
     throw apiError(409, 'name_taken', 'An ensemble with this name exists', { issues: [{ path: ['name'], message: 'An ensemble with this name exists', code: 'custom' }] })
   }
-  const { ensemble, invitation } = await createEnsembleWithDirector(db, admin.id, body, clientAddress(event))
-  const link = invitationLink(String(useRuntimeConfig().baseUrl), invitation.token)
-  await sendMail(invitationMail(invitation.email, ensemble.name, 'director', link, admin.name))
-    .catch(err => console.error(`[mail] invitation not sent: ${(err as Error).message}`))
+  const { ensemble, invitation } = await createEnsembleWithDirector(db, admin.id, body, clientAddress(event), invitationTtlMs())
+  // A message that could not go out is logged there; the admin can have it re-sent from the ensemble's invitations.
+  await mailInvitations(db, ensemble.id, admin.name, [invitation])
   setResponseStatus(event, 201)
   return { ...ensemble, invitation: { id: invitation.id, email: invitation.email, expiresAt: invitation.expiresAt } }
 })
