@@ -20,6 +20,8 @@ const ACTIONS: Record<string, string> = {
   'assignment.updated': 'Changed an assignment',
   'assignment.archived': 'Archived an assignment',
   'assignment.restored': 'Restored an assignment',
+  'review.created': 'Reviewed a take',
+  'review.updated': 'Changed a review',
 }
 
 /** "user.site_admin_granted" → "Made a site admin"; unknown actions become readable words. */

@@ -11,6 +11,7 @@ import * as m006 from '../../migrations/006_people_settings'
 import * as m007 from '../../migrations/007_accounts_and_admin'
 import * as m008 from '../../migrations/008_drill_versions'
 import * as m009 from '../../migrations/009_assignment_assignees'
+import * as m010 from '../../migrations/010_review_notes'
 import * as m011 from '../../migrations/011_member_reading_default'
 import * as m012 from '../../migrations/012_figure_indexes'
 
@@ -26,6 +27,7 @@ export const MIGRATIONS: Record<string, Migration> = {
   '007_accounts_and_admin.ts': m007,
   '008_drill_versions.ts': m008,
   '009_assignment_assignees.ts': m009,
+  '010_review_notes.ts': m010,
   '011_member_reading_default.ts': m011,
   '012_figure_indexes.ts': m012,
 }

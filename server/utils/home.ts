@@ -2,6 +2,7 @@ import type { Knex } from 'knex'
 import type { SessionUser } from '../../shared/types/user'
 import type { HomeData, HomeDue } from '../../shared/types/home'
 import { assignmentStatus } from '../../shared/assignments/status'
+import { reviewMarks, reviewMarksSql } from './reviews'
 
 /** Window of the director's per-ensemble summary, in days. */
 export const SUMMARY_DAYS = 28
@@ -92,7 +93,7 @@ export async function loadHome (db: Knex, user: SessionUser, now = new Date()): 
       this.on('an.take_id', '=', 't.id').andOn('an.is_current', '=', db.raw('1'))
     })
     .where('t.user_id', uid).whereNull('t.withdrawn_at')
-    .select('t.id', 'd.title as drill_title', 't.part', 't.status', 't.created_at', 'an.mean_abs_cents', 'an.within_tolerance_share', 'an.drift_cents_per_min', db.raw('coalesce(an.tolerance, d.tolerance) as tolerance'))
+    .select('t.id', 'd.title as drill_title', 't.part', 't.status', 't.created_at', 'an.mean_abs_cents', 'an.within_tolerance_share', 'an.drift_cents_per_min', db.raw('coalesce(an.tolerance, d.tolerance) as tolerance'), reviewMarksSql(db))
     .orderBy([{ column: 't.created_at', order: 'desc' }, { column: 't.id', order: 'desc' }])
     .limit(10)
 
@@ -121,6 +122,7 @@ export async function loadHome (db: Knex, user: SessionUser, now = new Date()): 
     recent: recent.map((r: any) => ({
       takeId: r.id, drillTitle: r.drill_title, part: r.part, status: r.status, createdAt: r.created_at,
       meanAbsCents: num(r.mean_abs_cents), withinToleranceShare: num(r.within_tolerance_share), driftCentsPerMin: num(r.drift_cents_per_min), tolerance: Number(r.tolerance),
+      review: reviewMarks(r.review_marks)[0] ?? null,
     })),
     ensembleSummary: summary.map((r: any) => ({
       ensembleId: r.id, ensembleName: r.name, takesAnalysed: Number(r.analysed), meanAbsCents: num(r.mean_abs), withinToleranceShare: num(r.within), periodDays: SUMMARY_DAYS, tolerance: num(r.tolerance),

@@ -13,6 +13,7 @@ import { writeAudit } from './audit'
 import { analysisErrorMessage } from './take-analysis'
 import { visibleTakes, type TakeAccess } from './access'
 import type { StoredDrill } from './drills'
+import { reviewMarks, reviewMarksSql, takeReviews } from './reviews'
 
 export interface TakeRecord {
   id: number
@@ -73,7 +74,7 @@ export async function takeLiveState (db: Knex, takeId: number): Promise<TakeLive
 }
 
 /** Everything GET /api/takes/:id answers. */
-export async function takeDetail (db: Knex, a: TakeAccess): Promise<TakeDetail | null> {
+export async function takeDetail (db: Knex, a: TakeAccess, viewerId: number): Promise<TakeDetail | null> {
   const t = a.take
   const [live, drill, player, analysis] = await Promise.all([
     takeLiveState(db, t.id),
@@ -93,6 +94,7 @@ export async function takeDetail (db: Knex, a: TakeAccess): Promise<TakeDetail |
     .orderBy([{ column: 't.created_at', order: 'desc' }, { column: 't.id', order: 'desc' }]).limit(20)
     .select('t.id', 't.created_at', 't.status', 'an.mean_abs_cents', 'an.within_tolerance_share', 'an.drift_cents_per_min')
   const report = analysis?.report ? JSON.parse(analysis.report) as TakeReport : null
+  const reviews = await takeReviews(db, t.id, viewerId, report?.holds ?? null)
   return {
     id: t.id,
     ...live,
@@ -112,6 +114,9 @@ export async function takeDetail (db: Knex, a: TakeAccess): Promise<TakeDetail |
     mime: t.mime ?? 'application/octet-stream',
     bytes: t.bytes,
     originalName: t.originalName,
+    reviews,
+    // Anyone but the player who may open it reviews it: its section's leader or a director.
+    canReview: !a.isOwner && (a.isDirector || a.membership?.role === 'section_leader') && !t.withdrawnAt,
     earlier: earlier.map((r: Record<string, any>): EarlierTake => ({ id: r.id, createdAt: r.created_at, status: r.status, meanAbsCents: num(r.mean_abs_cents), withinToleranceShare: num(r.within_tolerance_share), driftCentsPerMin: num(r.drift_cents_per_min) })),
   }
 }
@@ -137,7 +142,7 @@ export async function listTakes (db: Knex, user: SessionUser, f: TakeListQuery):
       : [{ column: 't.created_at', order: 'desc' }, { column: 't.id', order: 'desc' }])
     .limit(f.pageSize).offset((f.page - 1) * f.pageSize)
     .select('t.id', 't.drill_id', 'd.title as drill_title', 't.part', 'u.name as player_name', 't.status', 't.created_at',
-      'an.mean_abs_cents', 'an.within_tolerance_share', 't.withdrawn_at', 't.assignment_id', 'me.role as my_role')
+      'an.mean_abs_cents', 'an.within_tolerance_share', 't.withdrawn_at', 't.assignment_id', 'me.role as my_role', reviewMarksSql(db))
   // The caller directs the ensemble: a director's membership, or a site admin holding none (as in membershipFor).
   const directs = (role: string | null) => role === 'director' || (role == null && user.siteRole === 'admin')
   return {
@@ -155,6 +160,7 @@ export async function listTakes (db: Knex, user: SessionUser, f: TakeListQuery):
       withdrawnAt: r.withdrawn_at ?? null,
       assignmentId: r.assignment_id ?? null,
       canRestore: r.withdrawn_at != null && directs(r.my_role ?? null),
+      reviewedBy: reviewMarks(r.review_marks),
     })),
     total: Number(n),
     page: f.page,

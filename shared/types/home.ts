@@ -1,6 +1,7 @@
 // GET /api/home, once for the server and the home page.
 import type { EnsembleRole, SessionUser } from './user'
 import type { TakeStatusName } from './take'
+import type { ReviewMark } from './review'
 
 export interface HomeMembership {
   ensembleId: number
@@ -56,6 +57,8 @@ export interface HomeRecent {
   driftCentsPerMin: number | null
   /** ± cents the take was scored at (its analysis, else its drill). */
   tolerance: number
+  /** The latest review's verdict and reviewer; null until reviewed. */
+  review: ReviewMark | null
 }
 
 /** A director's ensemble over the last `periodDays`. */

@@ -2,6 +2,7 @@
 // sends it, the pages read it. Fields added after the first engine are optional, since reports
 // stored earlier are sent as they were stored.
 import type { SystemOptions } from '../drill/schema'
+import type { ReviewMark, TakeReview } from './review'
 
 export type TakeStatusName = 'queued' | 'analysing' | 'analysed' | 'failed'
 
@@ -142,6 +143,10 @@ export interface TakeDetail extends TakeLiveState {
   bytes: number | null
   originalName: string | null
   earlier: EarlierTake[]
+  /** Every review of the take, newest first. */
+  reviews: TakeReview[]
+  /** The caller may review it (its section's leader or a director, not the player). */
+  canReview: boolean
 }
 
 /** A row of GET /api/takes. */
@@ -160,6 +165,8 @@ export interface TakeListItem {
   assignmentId: number | null
   /** The caller directs the take's ensemble and the take is withdrawn: it can be restored. */
   canRestore: boolean
+  /** Who reviewed it and their verdicts, newest first (empty until reviewed). */
+  reviewedBy: ReviewMark[]
 }
 
 /** GET /api/takes */

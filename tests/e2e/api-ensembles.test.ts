@@ -111,8 +111,9 @@ describe('GET /api/home', () => {
     if (home.due.some((d: { submitted: boolean }) => d.submitted)) expect(home.recent.length).toBeGreaterThan(0)
     for (const t of home.recent) {
       // `tolerance`: the ± cents the take was scored at, so its badge is graded like its report;
-      // `driftCentsPerMin`: null until analysed, or when too few holds give a slope.
-      expect(Object.keys(t).sort()).toEqual(['createdAt', 'driftCentsPerMin', 'drillTitle', 'meanAbsCents', 'part', 'status', 'takeId', 'tolerance', 'withinToleranceShare'])
+      // `driftCentsPerMin`: null until analysed, or when too few holds give a slope;
+      // `review`: the latest verdict and who gave it, null until reviewed.
+      expect(Object.keys(t).sort()).toEqual(['createdAt', 'driftCentsPerMin', 'drillTitle', 'meanAbsCents', 'part', 'review', 'status', 'takeId', 'tolerance', 'withinToleranceShare'])
       expect(t.tolerance).toBeGreaterThan(0)
     }
   })

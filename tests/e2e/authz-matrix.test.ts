@@ -90,6 +90,9 @@ const MATRIX: Row[] = [
   ['POST /api/ensembles/[id]/assignments',           401, 403, 403, 403, 201, 404, 201, 401],
   ['PATCH /api/ensembles/[id]/assignments/[assignmentId]', 401, 403, 403, 403, 200, 404, 200, 401],
   ['GET /api/ensembles/[id]/assignments/[assignmentId]/progress', 401, 403, 200, 200, 200, 404, 200, 401], // another section's leader: an empty list
+  // ---- review ----
+  ['POST /api/takes/[id]/reviews',                   401, 403, 201, 403, 201, 404, 201, 401], // the player's take: never by the player; a new review each
+  ['GET /api/reviews/queue',                         401, 403, 200, 403, 200, 404, 200, 401], // the player's section
 ]
 
 // ---- the routes on disk ----------------------------------------------------------------------
@@ -387,6 +390,9 @@ async function assignmentReady (): Promise<void> {
     body: JSON.stringify({ drillId: ids.drill, sectionIds: [assignment.section], dueAt: new Date(Date.now() + 7 * 86400_000).toISOString() }),
   })
   assignment.id = (await asJson(r)).id
+  // ---- review ----
+  'POST /api/takes/[id]/reviews': { path: () => `/api/takes/${ids.take}/reviews`, body: () => ({ verdict: 'approved', notes: [{ body: 'Matrix note' }] }), before: ready },
+  'GET /api/reviews/queue': { path: () => `/api/reviews/queue?sectionId=${ids.playerSection}` },
 }
 
 async function callAs (caller: Caller, route: string, call: Call): Promise<number> {

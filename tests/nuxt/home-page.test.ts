@@ -65,7 +65,7 @@ describe('home page', () => {
         { assignmentId: 1, ensembleId: 1, ensembleName: 'Fernhill Singers', drillId: 3, drillTitle: 'Late drill', title: null, part: 'Alto', dueAt: new Date(Date.now() - 2 * DAY).toISOString(), submitted: false, overdue: true, tolerance: 10 },
         { assignmentId: 2, ensembleId: 1, ensembleName: 'Fernhill Singers', drillId: 4, drillTitle: 'Done drill', title: null, part: 'Alto', dueAt: new Date(Date.now() + 3 * DAY).toISOString(), submitted: true, overdue: false, tolerance: 10 },
       ],
-      recent: [{ takeId: 9, drillTitle: 'Done drill', part: 'Alto', status: 'analysed', createdAt: new Date().toISOString(), meanAbsCents: 7.25, withinToleranceShare: 0.8, driftCentsPerMin: null, tolerance: 10 }],
+      recent: [{ takeId: 9, drillTitle: 'Done drill', part: 'Alto', status: 'analysed', createdAt: new Date().toISOString(), meanAbsCents: 7.25, withinToleranceShare: 0.8, driftCentsPerMin: null, tolerance: 10, review: null }],
     })
     const due = w.get('section[aria-labelledby="home-due"]')
     const items = due.findAll('li')
@@ -92,8 +92,8 @@ describe('home page', () => {
       ...base,
       memberships: [{ ensembleId: 1, ensembleName: 'Fernhill Singers', role: 'player', sectionId: 2, sectionName: 'Alto' }],
       recent: [
-        { takeId: 9, drillTitle: 'Wide drill', part: 'Alto', status: 'analysed', createdAt: new Date().toISOString(), meanAbsCents: 15, withinToleranceShare: 0.8, driftCentsPerMin: null, tolerance: 25 },
-        { takeId: 8, drillTitle: 'Tight drill', part: 'Alto', status: 'analysed', createdAt: new Date(Date.now() - DAY).toISOString(), meanAbsCents: 15, withinToleranceShare: 0.8, driftCentsPerMin: null, tolerance: 10 },
+        { takeId: 9, drillTitle: 'Wide drill', part: 'Alto', status: 'analysed', createdAt: new Date().toISOString(), meanAbsCents: 15, withinToleranceShare: 0.8, driftCentsPerMin: null, tolerance: 25, review: null },
+        { takeId: 8, drillTitle: 'Tight drill', part: 'Alto', status: 'analysed', createdAt: new Date(Date.now() - DAY).toISOString(), meanAbsCents: 15, withinToleranceShare: 0.8, driftCentsPerMin: null, tolerance: 10, review: null },
       ],
     })
     const badges = w.get('section[aria-labelledby="home-recent"]').findAll('ul [data-token]')

@@ -7,7 +7,7 @@ export default defineEventHandler(async (event): Promise<TakeDetail> => {
   const db = useDb()
   const access = await findTakeForUser(db, user, id)
   if (!access) throw apiError(404, 'not_found', 'Take not found')
-  const detail = await takeDetail(db, access)
+  const detail = await takeDetail(db, access, user.id)
   if (!detail) throw apiError(404, 'not_found', 'Take not found')
   setResponseHeader(event, 'Cache-Control', 'no-store')
   return detail

@@ -118,7 +118,7 @@ describe('drift and times in the take history and on home', () => {
   })
 
   it('home lists the drift of recent takes, or "not enough holds"', async () => {
-    const base = { drillTitle: 'Held fifths', part: 'Alto', status: 'analysed' as const, createdAt: '2026-03-10T18:00:00Z', meanAbsCents: 5, withinToleranceShare: 0.9, tolerance: 10 }
+    const base = { drillTitle: 'Held fifths', part: 'Alto', status: 'analysed' as const, createdAt: '2026-03-10T18:00:00Z', meanAbsCents: 5, withinToleranceShare: 0.9, tolerance: 10, review: null }
     const w = await mountSuspended(HomeRecent, {
       props: { items: [{ ...base, takeId: 1, driftCentsPerMin: null }, { ...base, takeId: 2, driftCentsPerMin: 1.25 }] },
     })
