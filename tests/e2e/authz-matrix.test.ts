@@ -377,6 +377,9 @@ const CALLS: Record<string, Call> = {
     before: assignmentReady,
   },
   'GET /api/ensembles/[id]/assignments/[assignmentId]/progress': { path: () => `/api/ensembles/${ids.ensemble}/assignments/${assignment.id}/progress`, before: assignmentReady },
+  // ---- review ----
+  'POST /api/takes/[id]/reviews': { path: () => `/api/takes/${ids.take}/reviews`, body: () => ({ verdict: 'approved', notes: [{ body: 'Matrix note' }] }), before: ready },
+  'GET /api/reviews/queue': { path: () => `/api/reviews/queue?sectionId=${ids.playerSection}` },
 }
 
 // An assignment of X to the player's section, made once by its director.
@@ -390,9 +393,6 @@ async function assignmentReady (): Promise<void> {
     body: JSON.stringify({ drillId: ids.drill, sectionIds: [assignment.section], dueAt: new Date(Date.now() + 7 * 86400_000).toISOString() }),
   })
   assignment.id = (await asJson(r)).id
-  // ---- review ----
-  'POST /api/takes/[id]/reviews': { path: () => `/api/takes/${ids.take}/reviews`, body: () => ({ verdict: 'approved', notes: [{ body: 'Matrix note' }] }), before: ready },
-  'GET /api/reviews/queue': { path: () => `/api/reviews/queue?sectionId=${ids.playerSection}` },
 }
 
 async function callAs (caller: Caller, route: string, call: Call): Promise<number> {
