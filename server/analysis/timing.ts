@@ -47,8 +47,17 @@ export function findOnsets (tracks: CoarseTrack[], placements: HoldPlacement[], 
     const thr = 0.3 * lv[lv.length >> 1]!
     const ok = (j: number) => tr.voiced[j] === 1 && near(tr.hz[j]!, refHz) && tr.energy[j]! >= thr
     let on = -1
-    const a = Math.max(0, p.frameStart - Math.round(0.15 / hop))
+    let a = Math.max(0, p.frameStart - Math.round(0.15 / hop))
     const b = Math.min(F - 1, p.frameStart + Math.round(0.3 / hop))
+    // A repeated note placed right after the same note: the frames before its start are the
+    // previous note's tail, so the search starts after the lowest level near the start (the
+    // re-articulation's dip).
+    const before = i > 0 ? placements[i - 1]! : null
+    if (before && before.found && holds[i - 1]!.midi === h.midi && (p.frameStart - before.frameEnd) * hop < 0.1) {
+      let low = a
+      for (let j = a; j <= Math.min(F - 1, p.frameStart + Math.round(0.15 / hop)); j++) if (tr.energy[j]! < tr.energy[low]!) low = j
+      a = Math.min(b, low + 1)
+    }
     for (let j = a; j <= b; j++) if (ok(j)) { on = j; break }
     let off = -1
     const c = Math.min(F - 1, p.frameEnd - 1 + Math.round(0.25 / hop))
