@@ -11,8 +11,7 @@
 // - Octave guard: the coarse detector's octave is checked against the harmonics. A hold played
 //   or sung an octave off is a wrong note measured at the octave heard, never a 1200 ¢ deviation.
 // - Steady part: the main plateau of the hold (within 100 ¢ of its median), attack trimmed by
-//   12 % of its length (0.18–0.3 s) and release by 6 % (0.2–0.25 s: players and singers often
-//   bend the pitch as they let go), then extended past any
+//   12 % of its length (0.18–0.3 s) and release by 6 % (0.08–0.2 s), then extended past any
 //   settling transient still visible (smoothed residual > max(4 ¢, 3 SD)), at most 0.4 s more.
 //   Short holds get shorter trims (≥ 50 / 40 ms); 0.15 s of steady sound is the minimum,
 //   otherwise too_short.
@@ -567,7 +566,7 @@ function measureSteady (tr: RefinedTrack, h: ExpectedHold, startS: number, endS:
   // The settling transient of a real attack lasts 0.1–0.2 s: start the steady part ≥ 0.18 s
   // after the plateau begins (which is itself a few tens of ms after the onset).
   let trimA = Math.min(0.3, Math.max(0.18, 0.12 * plateauS))
-  let trimR = Math.min(0.25, Math.max(0.2, 0.06 * plateauS))
+  let trimR = Math.min(0.2, Math.max(0.08, 0.06 * plateauS))
   // Short holds: shrink both trims (to no less than 50 and 40 ms) so that MIN_STEADY_S remains.
   if (plateauS - trimA - trimR < MIN_STEADY_S) {
     const room = Math.max(0, plateauS - MIN_STEADY_S)
