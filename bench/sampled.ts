@@ -52,9 +52,30 @@ function praatMeans (wav: string, windows: Array<{ a: number, b: number, hz: num
   return out.trim().split('\n').map(l => (/^-?[0-9.]+$/.test(l.trim()) ? Math.pow(2, Number(l) / 12) : null))
 }
 
+/**
+ * Spread between the voices of a section asked for over a hold's steady window: the RMS over
+ * time of the standard deviation across voices of each voice's detune plus vibrato (the chord's
+ * offset and the drift are shared by every voice and do not spread them).
+ */
+export function askedVoiceSpread (take: RenderedTake, hold: { steadyStartS: number, steadyEndS: number }): number | null {
+  const voices = take.spec.parts.find(p => p.name === take.spec.part)!.voices
+  if (voices.length < 2) return null
+  let sum = 0
+  let n = 0
+  for (let t = hold.steadyStartS; t <= hold.steadyEndS; t += 0.005) {
+    const c = voices.map(v => v.detuneCents + (v.vibrato ? v.vibrato.extentCents * Math.sin(2 * Math.PI * v.vibrato.rateHz * t + v.vibrato.phase) : 0))
+    const mean = c.reduce((a, b) => a + b, 0) / c.length
+    sum += c.reduce((a, b) => a + (b - mean) ** 2, 0) / c.length
+    n++
+  }
+  return Math.sqrt(sum / n)
+}
+
 interface HoldRow {
   kind: TakeKind
   take: string
+  spread: number | null
+  spreadAsked: number | null
   found: boolean
   err: number | null
   praatErr: number | null
@@ -95,6 +116,7 @@ export async function sampledTable (dir: string): Promise<string[]> {
           praatErr: praat[i] ? cents(praat[i]!, t.truthHz) : null,
           onsetErr: found ? held.startS - t.onS : null,
           confidence: held.confidence, tied: t.tied,
+          spread: found ? held.voiceSpreadCents ?? null : null, spreadAsked: askedVoiceSpread(take, t),
         })
       })
       const pts = m.holds.filter(h => h.detectedHz !== null && h.reasonCode === null).map(h => ({
@@ -145,6 +167,15 @@ export async function sampledTable (dir: string): Promise<string[]> {
     const b = rows.filter(r => r.found && r.confidence >= band[0] && r.confidence < band[1])
     out.push(`  confidence ${band[0]}–${Math.min(1, band[1])}: ${b.length} holds, within 1 ¢: ${b.filter(r => Math.abs(r.err!) <= 1).length}`)
   }
+  const spreadRows = rows.filter(r => r.spreadAsked !== null && r.found)
+  if (spreadRows.length) {
+    const told = spreadRows.filter(r => r.spread !== null)
+    const rel = told.map(r => Math.abs(r.spread! - r.spreadAsked!) / r.spreadAsked!)
+    out.push(`Spread between voices (sections): told on ${told.length}/${spreadRows.length} holds; asked median ${f(q(spreadRows.map(r => r.spreadAsked!), 0.5), 1)} ¢, ` +
+      `measured median ${f(q(told.map(r => r.spread!), 0.5), 1)} ¢; relative error median ${f(100 * q(rel, 0.5), 0)} %, p95 ${f(100 * q(rel, 0.95), 0)} %.`)
+  }
+  const single = rows.filter(r => r.spreadAsked === null && r.found)
+  if (single.length) out.push(`Spread between voices on one-voice holds: told (wrongly) on ${single.filter(r => r.spread !== null).length}/${single.length}.`)
   const tied = rows.filter(r => r.tied)
   if (tied.length) out.push(`Tied repeats (no re-articulation): ${tied.filter(r => r.found).length}/${tied.length} found, median |err| ${f(q(tied.filter(r => r.found).map(r => Math.abs(r.err!)), 0.5), 3)} ¢.`)
   out.push('')

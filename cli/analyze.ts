@@ -134,6 +134,7 @@ export function reportJson (report: TakeReport): unknown {
       steadyStartS: h.steadyStartS,
       steadyEndS: h.steadyEndS,
       centreErrorCents: h.centreErrorCents,
+      voiceSpreadCents: h.voiceSpreadCents,
       timing: h.timing,
     })),
     summary: report.summary,

@@ -317,15 +317,20 @@ export function aubioTrack (wavPath: string, method = 'mcomb', buf = '4096'): Ar
   return out.trim().split('\n').map(l => l.trim().split(/\s+/).map(Number) as [number, number]).filter(([, f]) => f > 0)
 }
 
-/** Both aubiopitch tracks of a file: multi-comb first, plain YIN where multi-comb slips an octave. */
-export function aubioTracks (wavPath: string): Array<Array<[number, number]>> {
-  return [aubioTrack(wavPath, 'mcomb', '4096'), aubioTrack(wavPath, 'yin', '4096')]
+/** Both aubiopitch tracks of a file, each run only when first needed: multi-comb first, plain YIN
+ *  (an O(N²) search per frame, by far the slower) only where multi-comb slips an octave. */
+export function aubioTracks (wavPath: string): Array<() => Array<[number, number]>> {
+  const lazy = (method: string) => {
+    let track: Array<[number, number]> | null = null
+    return () => (track ??= aubioTrack(wavPath, method, '4096'))
+  }
+  return [lazy('mcomb'), lazy('yin')]
 }
 
 /** logMean over the first of `tracks` that has enough frames near the note. */
-export function logMeanOf (tracks: Array<Array<[number, number]>>, a: number, b: number, nearHz: number): number {
+export function logMeanOf (tracks: Array<() => Array<[number, number]>>, a: number, b: number, nearHz: number): number {
   for (const [i, tr] of tracks.entries()) {
-    try { return logMean(tr, a, b, nearHz) } catch (e) { if (i === tracks.length - 1) throw e }
+    try { return logMean(tr(), a, b, nearHz) } catch (e) { if (i === tracks.length - 1) throw e }
   }
   throw new Error('no aubiopitch track')
 }
@@ -480,8 +485,9 @@ export function missingTool (): string | null {
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..')
 
-/** The small takes the unit tests read (16 kHz, mono 16-bit WAV, about 300 kB each): a trumpet line with a wrong note
- *  and a tied repeat, and a sung line (voice oohs) with vibrato and a note an octave low. */
+/** The small takes the unit tests read (16 kHz, mono 16-bit WAV, 300–500 kB each): a trumpet line with a wrong note
+ *  and a tied repeat, a sung line (voice oohs) with vibrato and a note an octave low, and a five-voice section on one
+ *  part. */
 export function fixtureSpecs (): TakeSpec[] {
   const beats = [2, 2, 2, 2, 2, 2]
   return [
@@ -496,6 +502,22 @@ export function fixtureSpecs (): TakeSpec[] {
       tempo: 80, beats, part: 'P', parts: [{ name: 'P', notes: [64, 65, 67, 69, 67, 64], voices: [{ program: 53, detuneCents: 0, vibrato: { rateHz: 5.4, extentCents: 15, phase: 0.5 } }] }],
       played: [64, 65, 67, 57, 67, 64], offsets: [-6, 3, 9, 0, -11, 4], driftCentsPerMin: 0, leadInS: 1.1, lateS: [0.04, 0, 0.07, 0.02, 0.05, 0.01],
       repeats: 'rearticulate', gapS: 0.12, rate: 16000,
+    },
+    {
+      id: 'section-aahs-5', kind: 'section', label: 'Choir aahs (52) ×5 voices, each detuned and with its own vibrato; a repeated E4',
+      tempo: 72, beats: [3, 3, 3, 3, 3], part: 'P',
+      parts: [{
+        name: 'P', notes: [64, 65, 62, 64, 64],
+        voices: [
+          { program: 52, detuneCents: -7, vibrato: { rateHz: 4.8, extentCents: 12, phase: 0.4 } },
+          { program: 52, detuneCents: -2, vibrato: { rateHz: 5.3, extentCents: 22, phase: 2.1 } },
+          { program: 52, detuneCents: 1, vibrato: { rateHz: 5.9, extentCents: 9, phase: 4.0 } },
+          { program: 52, detuneCents: 4, vibrato: { rateHz: 6.2, extentCents: 26, phase: 5.2 } },
+          { program: 52, detuneCents: 7, vibrato: { rateHz: 5.5, extentCents: 15, phase: 1.3 } },
+        ],
+      }],
+      offsets: [5, -9, 3, 11, -4], driftCentsPerMin: 0, leadInS: 0.9, lateS: [0.03, 0, 0.05, 0.02, 0.04],
+      repeats: 'rearticulate', gapS: 0.1, rate: 16000,
     },
   ]
 }

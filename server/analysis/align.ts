@@ -60,7 +60,8 @@ const BOUNDARY_MARGIN_S = 0.12
  * Frames where the take shows a new note starting: the median pitch of the next five voiced
  * frames differs from that of the previous five by more than 0.7 semitone (a lasting change,
  * not one stray frame), or the energy dips below a quarter of the level on both sides within
- * 0.6 s (a re-articulation or a breath). Local strongest points only.
+ * 0.6 s (a re-articulation or a breath) with no other such dip within 0.5 s (beating voices).
+ * Local strongest points only.
  */
 export function boundaryFrames (track: CoarseTrack): Uint8Array {
   const F = track.times.length
@@ -89,8 +90,12 @@ export function boundaryFrames (track: CoarseTrack): Uint8Array {
       if (q - j > maxGap) prev.length = 0
     }
   }
-  // Energy dips (in dB terms: below a quarter of the louder context on both sides).
+  // Energy dips (in dB terms: below a quarter of the louder context on both sides). Several
+  // voices on one part beat: their level dips every few tenths of a second without any new note,
+  // so a dip with another dip within 0.5 s either side is beating, not a re-articulation (a real
+  // one is a chord apart from the next).
   const w = Math.max(2, Math.round(0.6 / track.hopS))
+  const dips: number[] = []
   for (let j = 1; j < F - 1; j++) {
     const e = track.energy[j]!
     if (!(e < track.energy[j - 1]!) || !(e <= track.energy[j + 1]!)) continue
@@ -98,8 +103,28 @@ export function boundaryFrames (track: CoarseTrack): Uint8Array {
     let r = 0
     for (let q = Math.max(0, j - w); q < j; q++) l = Math.max(l, track.energy[q]!)
     for (let q = j + 1; q <= Math.min(F - 1, j + w); q++) r = Math.max(r, track.energy[q]!)
-    if (l > track.gate && r > track.gate && e < 0.25 * l && e < 0.25 * r) strength[j] = Math.max(strength[j]!, 1)
+    if (l > track.gate && r > track.gate && e < 0.25 * l && e < 0.25 * r) dips.push(j)
   }
+  // Two minima of one gap (a breath, a stop) are one dip: dips count as separate only with a
+  // loud stretch (4× the deeper side) between them.
+  const beatGap = Math.round(0.5 / track.hopS)
+  const separate = (a: number, b: number) => {
+    let top = 0
+    for (let q = a + 1; q < b; q++) top = Math.max(top, track.energy[q]!)
+    return top >= 4 * Math.max(track.energy[a]!, track.energy[b]!)
+  }
+  const clusters: number[][] = []
+  for (const j of dips) {
+    const last = clusters[clusters.length - 1]
+    if (last && !separate(last[last.length - 1]!, j)) last.push(j)
+    else clusters.push([j])
+  }
+  clusters.forEach((c, i) => {
+    const p = clusters[i - 1]
+    const q = clusters[i + 1]
+    const beating = (p !== undefined && c[0]! - p[p.length - 1]! <= beatGap) || (q !== undefined && q[0]! - c[c.length - 1]! <= beatGap)
+    if (!beating) for (const j of c) strength[j] = Math.max(strength[j]!, 1)
+  })
   const half = Math.max(1, Math.round(0.15 / track.hopS))
   for (let j = 0; j < F; j++) {
     if (!(strength[j]! > 0)) continue

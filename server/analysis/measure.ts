@@ -20,9 +20,14 @@
 // - Centre: robust (Huber) regression of the cents track on a constant, a linear trend and, when
 //   vibrato is found, a sinusoid at its rate, over a whole number of vibrato cycles; the
 //   constant at the window centre is the hold centre (= mean log-frequency of the steady part).
+// - Several voices (a section recorded together): when the harmonics' spread about their moving
+//   centre is 8 ¢ or more (one voice shows a few cents at most), the centre is the harmonics'
+//   power-weighted frequency over the steady part (voices.ts), which beats do not scramble, its
+//   SE comes from four block centres and the harmonics' disagreement, and the hold reports the
+//   voices' spread (voiceSpreadCents). One voice: voiceSpreadCents null.
 // - Confidence (0–1) = usable share (steady length against half the chord, full from 50 %)
-//   × harmonicity ((h − 0.5)/0.4, clamped) × 1/(1 + (spread/15 ¢)²) × 1/(1 + (SE/1 ¢)²)
-//   × length (full from 0.4 s) × 0.9 when clipping was seen.
+//   × harmonicity ((h − 0.5)/0.4, clamped) × 1/(1 + (spread/15 ¢)²) (one voice only: beats are
+//   not unsteadiness) × 1/(1 + (SE/1 ¢)²) × length (full from 0.4 s) × 0.9 when clipping was seen.
 // - Clipping: more than 5 % of the sounding samples at full scale is an error ('clipped': the
 //   recording level was far too high); 0.1–5 % is a warning and lowers confidence slightly.
 // - Digital silence (peak below −80 dBFS) or no pitched frame anywhere → 'silent'; sound but
@@ -37,6 +42,7 @@ import type { TimeMap } from './timing'
 import { coarseTrack, noteBands, octaveEvidence, refinePitch } from './pitch'
 import type { CoarseTrack, RefinedTrack } from './pitch'
 import { ENGINE_VERSION, WRONG_NOTE_CENTS } from './types'
+import { harmonicCentroid, voiceSpread } from './voices'
 
 export { WRONG_NOTE_CENTS }
 import type { ExpectedHold, HoldReasonCode, MeasuredHold, Measurement, MeasurementWarning } from './types'
@@ -53,6 +59,8 @@ const CLIPPED_ERROR_SHARE = 0.05
 const CLIPPED_WARN_SHARE = 0.001
 const MIN_STEADY_S = 0.15
 const BIN_S = 0.005
+/** Spread between voices (cents, RMS about the moving centre) above which a hold is taken for several voices. */
+const SEVERAL_VOICES_CENTS = 8
 
 const log2c = (x: number) => 1200 * Math.log2(x)
 
@@ -695,16 +703,31 @@ function measureSteady (tr: RefinedTrack, h: ExpectedHold, startS: number, endS:
     const extent = Number.isFinite(vibRms) ? Math.SQRT2 * vibRms : Math.hypot(fit.vib.a, fit.vib.b)
     vibrato = { rateHz: round(rateHz, 2), extentCents: round(extent / g, 1) }
   }
+  const steadyStartS = bins.t[lo]! - BIN_S / 2
+  const steadyEndS = bins.t[hi]! + BIN_S / 2
+  // Several voices on the part (their spread about the moving centre is far above what one voice
+  // shows): the centre is the harmonics' power-weighted frequency, the track's own spread (beats,
+  // not unsteadiness) no longer counts against the confidence, and the voices' spread is reported.
+  let centreOut = centre
+  let seOut = se
+  let steadiness = 1 / (1 + (spread / 15) ** 2)
+  let voiceSpreadCents: number | null = null
+  const vs = voiceSpread(tr, steadyStartS, steadyEndS)
+  const cc = vs && vs.cents >= SEVERAL_VOICES_CENTS ? harmonicCentroid(tr, h.expectedHz, steadyStartS, steadyEndS) : null
+  if (vs && cc) {
+    centreOut = cc.centreCents
+    seOut = cc.seCents
+    steadiness = 1
+    voiceSpreadCents = round(vs.cents, 1)
+  }
   const usable = Math.min(1, steadyS / Math.max(0.4, 0.5 * expectedDur))
   const conf = usable *
     Math.min(1, Math.max(0, (harmonicity - 0.5) / 0.4)) *
-    (1 / (1 + (spread / 15) ** 2)) *
-    (1 / (1 + se * se)) *
+    steadiness *
+    (1 / (1 + seOut * seOut)) *
     Math.min(1, steadyS / 0.4) *
     (clipWarn ? 0.9 : 1)
-  const detectedHz = h.expectedHz * Math.pow(2, centre / 1200)
-  const steadyStartS = bins.t[lo]! - BIN_S / 2
-  const steadyEndS = bins.t[hi]! + BIN_S / 2
+  const detectedHz = h.expectedHz * Math.pow(2, centreOut / 1200)
   const out: MeasuredHold = {
     index: h.index,
     startS: round(startS, 3),
@@ -719,7 +742,8 @@ function measureSteady (tr: RefinedTrack, h: ExpectedHold, startS: number, endS:
     expectedHz: h.expectedHz,
     steadyStartS: round(steadyStartS, 3),
     steadyEndS: round(steadyEndS, 3),
-    centreErrorCents: round(se, 3),
+    centreErrorCents: round(seOut, 3),
+    voiceSpreadCents,
   }
   if (withTrace) out.trace = makeTrace(bins, h.expectedHz)
   return out

@@ -177,6 +177,25 @@ export interface RefinedTrack {
   spanS: number
   harmonics: number
   refHz: number
+  /** Every harmonic between neighbouring frames: interval m of harmonic k at k·n + m (n = partials.times.length). */
+  partials: Partials
+}
+
+export interface Partials {
+  /** Interval mid-times (s), harmonic share and level of each interval (as for the track). */
+  times: Float64Array
+  harmonicity: Float64Array
+  level: Float64Array
+  /** f0 that harmonic k gives over interval m (Hz; NaN where the harmonic is unusable there). */
+  f0: Float64Array
+  /** |X_m|·|X_m+L| of the harmonic over the interval: its power there. */
+  power: Float64Array
+  /** Phase advance of the harmonic over the interval against the track's prediction, radians (wrapped). */
+  dev: Float64Array
+  /** (|X_m|² + |X_m+L|²)/2: with `power`, how much the harmonic's level changes over the interval. */
+  meanPower: Float64Array
+  /** Time the interval spans, seconds (the lag of the phase advance). */
+  lagS: number
 }
 
 const TWO_PI = 2 * Math.PI
@@ -443,7 +462,38 @@ export function refinePitch (pyr: Pyramid, startS: number, endS: number, refHz: 
     varHz[m] = f > 0 && Number.isFinite(f) ? vD[m]! : Infinity
   }
 
+  // Per-harmonic detail between neighbouring frames (a short lag, so a harmonic of a section
+  // whose voices spread by tens of cents still advances less than half a turn): a part sung by
+  // several voices is measured from each harmonic's power-weighted frequency (its spectral
+  // centroid), which beats do not pull towards the loudest voice.
+  const n1 = lag1.n
+  const pf0 = new Float64Array(K * n1).fill(NaN)
+  const ppow = new Float64Array(K * n1)
+  const pdev = new Float64Array(K * n1)
+  const pmean = new Float64Array(K * n1)
+  const ptimes = new Float64Array(n1)
+  const plevel = new Float64Array(n1)
+  for (let m = 0; m < n1; m++) {
+    ptimes[m] = (first + m * H + H / 2) / r
+    plevel[m] = Math.min(frameLevel[m]!, frameLevel[m + 1]!)
+  }
+  for (let k = 0; k < K; k++) {
+    const kk = k + 1
+    for (let m = 0; m < n1; m++) {
+      const i = k * n1 + m
+      const p0 = pow[k * nF + m]!
+      const p1 = pow[k * nF + m + 1]!
+      ppow[i] = Math.sqrt(p0 * p1)
+      pmean[i] = (p0 + p1) / 2
+      const fp = fBs[m]!
+      const d = wrap(lag1.dphi[i]! - TWO_PI * kk * fp / (r / H))
+      pdev[i] = d
+      if (p0 > 0 && p1 > 0 && Number.isFinite(fp)) pf0[i] = fp + d * scale / kk
+    }
+  }
+
   return {
+    partials: { times: ptimes, harmonicity: lag1.harm, level: plevel, f0: pf0, power: ppow, dev: pdev, meanPower: pmean, lagS: H / r },
     times,
     hz,
     varHz,

@@ -36,6 +36,8 @@ export interface ReportHold {
   steadyStartS: number | null
   steadyEndS: number | null
   centreErrorCents: number | null
+  /** Several voices on the part: the spread of their pitches about their centre (RMS, cents); null for one voice. */
+  voiceSpreadCents: number | null
   /** Onset and release found, and how early or late against the beat under the take's time map; null when not placed. */
   timing: HoldTiming | null
   trace?: Array<[number, number]>
@@ -181,6 +183,7 @@ function scoreHold (m: MeasuredHold, t: TargetsResult['chords'][number]['notes']
     steadyStartS: m.steadyStartS,
     steadyEndS: m.steadyEndS,
     centreErrorCents: m.centreErrorCents,
+    voiceSpreadCents: m.voiceSpreadCents ?? null,
     timing: m.timing ?? null,
   }
   if (m.trace) out.trace = m.trace

@@ -47,8 +47,17 @@ export function findOnsets (tracks: CoarseTrack[], placements: HoldPlacement[], 
     const thr = 0.3 * lv[lv.length >> 1]!
     const ok = (j: number) => tr.voiced[j] === 1 && near(tr.hz[j]!, refHz) && tr.energy[j]! >= thr
     let on = -1
-    const a = Math.max(0, p.frameStart - Math.round(0.15 / hop))
+    let a = Math.max(0, p.frameStart - Math.round(0.15 / hop))
     const b = Math.min(F - 1, p.frameStart + Math.round(0.3 / hop))
+    // A repeated note placed right after the same note: the frames before its start are the
+    // previous note's tail, so the search starts after the lowest level near the start (the
+    // re-articulation's dip).
+    const before = i > 0 ? placements[i - 1]! : null
+    if (before && before.found && holds[i - 1]!.midi === h.midi && (p.frameStart - before.frameEnd) * hop < 0.1) {
+      let low = a
+      for (let j = a; j <= Math.min(F - 1, p.frameStart + Math.round(0.15 / hop)); j++) if (tr.energy[j]! < tr.energy[low]!) low = j
+      a = Math.min(b, low + 1)
+    }
     for (let j = a; j <= b; j++) if (ok(j)) { on = j; break }
     let off = -1
     const c = Math.min(F - 1, p.frameEnd - 1 + Math.round(0.25 / hop))
@@ -77,20 +86,21 @@ export function findOnsets (tracks: CoarseTrack[], placements: HoldPlacement[], 
 /**
  * The take's map t_take = offsetS + timeScale·t_drill from the onsets found (chord start on the
  * drill against onset in the take): Theil–Sen slope (median of the pairwise slopes of onsets at
- * least 0.5 s apart on the drill) and the median intercept, so a missing, extra or late chord
- * does not tip it. Null with fewer than three onsets or a slope outside 0.6–1.6.
+ * least 0.5 s apart on the drill, each weighted by its span) and the median intercept, so a
+ * missing, extra or late chord does not tip it. Null with fewer than three onsets or a slope
+ * outside 0.6–1.6.
  */
 export function fitTimeMap (pairs: Array<{ drillS: number, takeS: number }>): TimeMap | null {
   if (pairs.length < 3) return null
-  const slopes: number[] = []
+  const slopes: Array<{ v: number, w: number }> = []
   for (let i = 0; i < pairs.length; i++) {
     for (let j = i + 1; j < pairs.length; j++) {
       const dx = pairs[j]!.drillS - pairs[i]!.drillS
-      if (Math.abs(dx) >= 0.5) slopes.push((pairs[j]!.takeS - pairs[i]!.takeS) / dx)
+      if (Math.abs(dx) >= 0.5) slopes.push({ v: (pairs[j]!.takeS - pairs[i]!.takeS) / dx, w: Math.abs(dx) })
     }
   }
   if (slopes.length < 2) return null
-  const s = median(slopes)
+  const s = weightedMedian(slopes)
   if (!(s >= 0.6 && s <= 1.6)) return null
   const o = median(pairs.map(p => p.takeS - s * p.drillS))
   return { offsetS: o, timeScale: s }
@@ -111,6 +121,16 @@ function median (v: number[]): number {
   const s = [...v].sort((a, b) => a - b)
   const m = s.length >> 1
   return s.length % 2 ? s[m]! : (s[m - 1]! + s[m]!) / 2
+}
+
+// Weighted median: a pair's slope weighs as much as its span on the drill, since a timing error
+// of one frame tilts a short pair far more than a long one (weighted Theil–Sen).
+function weightedMedian (v: Array<{ v: number, w: number }>): number {
+  const s = [...v].sort((a, b) => a.v - b.v)
+  const half = s.reduce((acc, x) => acc + x.w, 0) / 2
+  let acc = 0
+  for (const x of s) { acc += x.w; if (acc >= half) return x.v }
+  return s[s.length - 1]!.v
 }
 
 function round3 (v: number): number {

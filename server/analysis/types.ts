@@ -48,8 +48,12 @@ export interface MeasuredHold {
   /** The stretch the centre was measured over. */
   steadyStartS: number | null
   steadyEndS: number | null
-  /** Standard error of the centre, cents (approximate: from four block means of the slow residual). */
+  /** Standard error of the centre, cents (approximate: from four block means of the slow residual,
+   *  or, for several voices, of the harmonics' power-weighted centre). */
   centreErrorCents: number | null
+  /** Several voices on the part (a section recorded together): the spread of their pitches about
+   *  their centre (RMS, cents: detuning and the vibrato they do not share); null for one voice. */
+  voiceSpreadCents?: number | null
   /** Decimated f0 track over the hold for charts: [seconds, Hz]. */
   trace?: Array<[number, number]>
   /** Onset and release found, and how early or late against the beat under the take's time map (holds placed in the take only). */

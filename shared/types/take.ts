@@ -48,6 +48,8 @@ export interface ReportHold {
   steadyStartS?: number | null
   steadyEndS?: number | null
   centreErrorCents?: number | null
+  /** Several voices on the part: the spread of their pitches about their centre (RMS, cents); null for one voice. */
+  voiceSpreadCents?: number | null
   /** Decimated f0 track: [seconds into the take, Hz]. */
   trace?: Array<[number, number]> | null
   /** Nearest equal-tempered note of what was heard ("E4", concert), for a wrong note. */

@@ -63,6 +63,17 @@ describe('holds timing in a take', () => {
     expect(m.holds[5]!.timing!.fromBeatS!).toBeLessThan(0.5)
   })
 
+  it('a re-struck repeated note starts at its re-attack, not in the tail of the note before', () => {
+    // Three chords on the same D4, released 40 ms before each re-attack (takeOf starts every
+    // hold 40 ms after its beat), then F4.
+    const t = takeOf(planOf([62, 62, 62, 65], 3, 72, [5, -5, 3, 0]), { leadInS: 1, gapS: 0 })
+    const m = measureTake(audioOf(t.samples, t.sampleRate), t.expected)
+    m.holds.forEach((h, i) => {
+      expect(h.timing!.start, `hold ${i}`).toBe('onset')
+      expect(Math.abs(h.timing!.onsetS! - t.synthHolds[i]!.startS), `hold ${i}`).toBeLessThan(0.05)
+    })
+  })
+
   it('a tied repeated note is split at the chord boundary, and the hold says so', () => {
     // Drill: D4 F4 F4 A4 (3 s each at 60 bpm); the singer holds F4 through chords 2 and 3 in
     // one breath, 6 ¢ sharp then 6 ¢ flat (a glide inside the tie), with no re-articulation.
