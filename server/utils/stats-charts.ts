@@ -78,7 +78,7 @@ export async function participation (db: Knex, f: HoldFilters): Promise<Particip
  * are one player's, the grid only when they are limited to a section, a player or a drill:
  * a whole ensemble's year would otherwise be tens of thousands of points nobody can read.
  */
-export async function chartSeries (db: Knex, m: Membership, f: HoldFilters, s: Scoring): Promise<ChartSeries> {
+export async function chartSeries (db: Knex, f: HoldFilters, s: Scoring): Promise<ChartSeries> {
   const wantTakes = f.userId !== undefined
   const wantGrid = f.userId !== undefined || f.sectionId !== undefined || f.drillId !== undefined
   const takes = new Map<number, ChartTake & { a: Acc, m: Map<string, Acc> }>()
@@ -140,7 +140,6 @@ export async function chartSeries (db: Knex, m: Membership, f: HoldFilters, s: S
     .map(g => ({ ...g.cell, n: g.a.n, meanCents: meanOf(g.a)! }))
     .sort((a, b) => a.drillId - b.drillId || a.chordIndex - b.chordIndex || a.part.localeCompare(b.part) || a.userId - b.userId)
   return {
-    choices: await chartChoices(db, m),
     takes: takeList,
     grid: gridList,
     sections: sectionList,

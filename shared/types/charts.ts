@@ -1,6 +1,7 @@
 // The chart series (GET /api/ensembles/:id/charts): what the charts need beyond the ensemble
 // statistics — per-take series, the hold × player grid, sections side by side, participation per
-// assignment — and the filter choices the caller may use. Same filters and access as /stats.
+// assignment. Same filters and access as /stats. And what the caller may choose from on the
+// charts screen (GET /api/ensembles/:id/charts/choices).
 import type { EnsembleRole } from './user'
 
 /** One take's figures over its scored holds (found, not wrong notes). */
@@ -73,7 +74,6 @@ export interface ChartChoices {
 }
 
 export interface ChartSeries {
-  choices: ChartChoices
   takes: ChartTake[]
   /** Only when the figures are limited to a section, a player or a drill (else empty). */
   grid: GridCell[]

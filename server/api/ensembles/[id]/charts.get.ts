@@ -17,5 +17,5 @@ export default defineEventHandler(async (event): Promise<ChartSeries> => {
   if (!scope.ok) throw apiError(scope.status, scope.code, scope.message, scope.details)
   const scoring = statsScoring(query)
   if (!scoring.ok) throw apiError(scoring.status, scoring.code, scoring.message, scoring.details)
-  return chartSeries(db, membership, scope.value, scoring.value)
+  return chartSeries(db, scope.value, scoring.value)
 })
