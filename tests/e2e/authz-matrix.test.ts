@@ -54,6 +54,9 @@ const MATRIX: Row[] = [
   ['PATCH /api/admin/ensembles/[id]',                401, 403, 403, 403, 403, 403, 200, 401],
   ['GET /api/admin/audit',                           401, 403, 403, 403, 403, 403, 200, 401],
   ['GET /api/admin/audit/facets',                    401, 403, 403, 403, 403, 403, 200, 401],
+  // ---- charts ----
+  ['GET /api/ensembles/[id]/charts',                 401, 200, 200, 403, 200, 404, 200, 401], // the player's series
+  ['GET /api/ensembles/[id]/charts/choices',         401, 200, 200, 200, 200, 404, 200, 401], // each member gets their own choices
 ]
 
 // Routes that landed after the rows above were written and still need their row (and a CALLS
@@ -274,6 +277,9 @@ const CALLS: Record<string, Call> = {
   'PATCH /api/admin/ensembles/[id]': { path: () => `/api/admin/ensembles/${ids.ensemble}`, body: () => ({ archived: false }) },
   'GET /api/admin/audit': { path: () => '/api/admin/audit' },
   'GET /api/admin/audit/facets': { path: () => '/api/admin/audit/facets' },
+  // ---- charts ----
+  'GET /api/ensembles/[id]/charts': { path: () => `/api/ensembles/${ids.ensemble}/charts?userId=${ids.player}` },
+  'GET /api/ensembles/[id]/charts/choices': { path: () => `/api/ensembles/${ids.ensemble}/charts/choices` },
 }
 
 async function callAs (caller: Caller, route: string, call: Call): Promise<number> {
