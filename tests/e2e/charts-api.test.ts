@@ -46,7 +46,7 @@ beforeAll(async () => {
   const firstTakes = raw.prepare('select min(t.id) as id, t.user_id from takes t group by t.user_id order by t.user_id').all() as Array<{ id: number, user_id: number }>
   firstTakes.slice(0, 6).forEach(t => raw.prepare('update takes set assignment_id = ? where id = ?').run(assignments.all, t.id))
   raw.prepare('update takes set withdrawn_at = ? where id = ?').run(now, firstTakes[5]!.id)
-  const second = raw.prepare('select t.id from takes t join memberships m on m.user_id = t.user_id where m.section_id = ? order by t.id limit 1').get(secs[1]!.id) as { id: number }
+  const second = raw.prepare('select t.id from takes t join memberships m on m.user_id = t.user_id where m.section_id = ? order by t.id desc limit 1').get(secs[1]!.id) as { id: number }
   raw.prepare('update takes set assignment_id = ? where id = ?').run(assignments.section, second.id)
   raw.close()
 
