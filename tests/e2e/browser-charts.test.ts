@@ -94,8 +94,8 @@ describe('charts in the browser', () => {
     await expect.poll(() => summary(page)).toContain(`${one.takes} takes`)
 
     // A date range the wrong way round is refused in the form, focus on the field.
-    await page.getByLabel('From').fill('2026-05-01')
-    await page.getByLabel('To').fill('2026-04-01')
+    await page.getByLabel('From', { exact: true }).fill('2026-05-01')
+    await page.getByLabel('To', { exact: true }).fill('2026-04-01')
     await page.getByRole('button', { name: 'Apply filters' }).click()
     await page.getByText('“To” must not be before “From”.').waitFor()
     expect(await page.evaluate(() => document.activeElement?.getAttribute('aria-invalid'))).toBe('true')
@@ -127,7 +127,9 @@ describe('charts in the browser', () => {
 
   it('a player on a phone sees only their own charts, and opens a table', { timeout: 240_000 }, async () => {
     const page = await signedIn(people.player, 390)
-    await page.getByRole('link', { name: 'Charts' }).first().click().catch(async () => { await page.goto(`${app.url}/charts`) })
+    // On a phone the screen is in the menu.
+    await page.getByRole('button', { name: 'Menu' }).click()
+    await page.getByRole('navigation', { name: 'Main (compact)' }).getByRole('link', { name: 'Charts' }).click()
     await page.waitForURL(/\/charts/)
     await page.getByTestId('charts').waitFor()
     expect(await page.getByRole('tab').count()).toBe(0)
