@@ -46,7 +46,7 @@ export async function participation (db: Knex, f: HoldFilters): Promise<Particip
       if (f.sectionId) q.andWhere(w => w.whereNull('a.section_id').orWhere('a.section_id', f.sectionId!))
     })
     .orderBy('a.created_at', 'desc').orderBy('a.id', 'desc')
-    .select('a.id', db.raw('coalesce(a.title, d.title) as title'), 'a.drill_id as drillId', 'a.section_id as sectionId', 'a.due_at as dueAt')
+    .select('a.id', db.raw('coalesce(a.title, d.title) as title'), 'a.drill_id as drillId', 'a.section_id as sectionId', 'a.due_at as dueAt') as Array<{ id: number, title: string, drillId: number, sectionId: number | null, dueAt: string | null }>
   if (!assignments.length) return []
   const people = await db('memberships as mb').join('users as u', 'u.id', 'mb.user_id').leftJoin('sections as s', 's.id', 'mb.section_id')
     .where('mb.ensemble_id', f.ensembleId).whereIn('mb.role', ['player', 'section_leader'])
@@ -54,7 +54,7 @@ export async function participation (db: Knex, f: HoldFilters): Promise<Particip
       if (f.sectionId) q.andWhere('mb.section_id', f.sectionId)
       if (f.userId) q.andWhere('mb.user_id', f.userId)
     })
-    .orderBy('u.name').orderBy('u.id').select('u.id as userId', 'u.name', 'mb.section_id as sectionId', 's.name as section')
+    .orderBy('u.name').orderBy('u.id').select('u.id as userId', 'u.name', 'mb.section_id as sectionId', 's.name as section') as Array<{ userId: number, name: string, sectionId: number | null, section: string | null }>
   const sent = await db('takes').where('ensemble_id', f.ensembleId).whereNull('withdrawn_at')
     .whereIn('assignment_id', assignments.map(a => a.id)).distinct('assignment_id', 'user_id')
   const done = new Set(sent.map(r => `${r.assignment_id}:${r.user_id}`))
