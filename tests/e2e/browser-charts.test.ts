@@ -116,6 +116,24 @@ describe('charts in the browser', () => {
     expect(await cells.count()).toBeGreaterThan(0)
     for (const text of await cells.allInnerTexts()) expect(text).toMatch(/^[+\u2212]?\d+\.\d ¢/)
     await expectFitsScreen(page)
+    // On a phone the filters fold behind a button; a tolerance re-scores the grid.
+    const filtersButton = page.getByRole('button', { name: 'Filters' })
+    expect(await filtersButton.getAttribute('aria-expanded')).toBe('false')
+    expect(await page.getByLabel('Tolerance (± ¢)').isVisible()).toBe(false)
+    await filtersButton.click()
+    await page.getByLabel('Tolerance (± ¢)').fill('50')
+    await page.getByRole('button', { name: 'Apply filters' }).click()
+    await page.waitForURL(/tolerance=50/)
+    // Within ± tolerance is in tune (the meaning of a tolerance, common practice): every cell whose
+    // number is within ±50 ¢ is now drawn in tune, and the others flat or sharp by their sign.
+    const misdrawn = async () => (await cells.evaluateAll(els => els.map(e => [e.textContent ?? '', e.getAttribute('data-token') ?? ''])))
+      .filter(([text, token]) => {
+        const v = Number(text.trim().split(' ')[0]!.replace('\u2212', '-'))
+        return Math.abs(v) <= 50 ? token !== 'in-tune' : !token.startsWith(v < 0 ? 'flat' : 'sharp')
+      }).length
+    await expect.poll(misdrawn).toBe(0)
+    expect(await cells.count()).toBeGreaterThan(0)
+    await expectFitsScreen(page)
     // Arrow keys move between the views.
     await page.getByRole('tab', { name: 'Section' }).focus()
     await page.keyboard.press('ArrowRight')
