@@ -140,6 +140,13 @@ describe('charts in the browser', () => {
     await page.waitForURL(/view=player/)
     await page.getByRole('heading', { name: 'Cents from target per chord member' }).waitFor()
     await expectFitsScreen(page)
+    // The section leader's rehearsal report is their section's, and fits the phone too.
+    await page.getByRole('tab', { name: 'Section' }).click()
+    await page.getByTestId('report-link').click()
+    await page.waitForURL(/\/charts\/report/)
+    await page.getByTestId('report-summary').waitFor()
+    expect(await page.getByRole('heading', { level: 1 }).innerText()).toBe(people.leaderSection)
+    await expectFitsScreen(page)
     await page.context().close()
   })
 
