@@ -17,10 +17,16 @@ const withinOf = (a: Acc) => (a.n ? r2(a.within / a.n) : null)
 /** What the caller may choose from on the charts screen (already scoped by role). */
 export async function chartChoices (db: Knex, m: Membership): Promise<ChartChoices> {
   const ensemble = await db('ensembles').where({ id: m.ensembleId }).first('tolerance')
+  const assignees = await hasAssignees(db)
   const drills = await db('drills').where({ ensemble_id: m.ensembleId }).orderBy('title').orderBy('id').select('id', 'title')
   const assignments = await db('assignments as a').join('drills as d', 'd.id', 'a.drill_id')
     .where('a.ensemble_id', m.ensembleId).whereNull('a.archived_at')
-    .modify((q) => { if (m.role !== 'director') q.andWhere(w => w.whereNull('a.section_id').orWhere('a.section_id', m.sectionId ?? -1)) })
+    .modify((q) => {
+      if (m.role === 'director') return
+      if (!assignees) q.andWhere(w => w.whereNull('a.section_id').orWhere('a.section_id', m.sectionId ?? -1))
+      else if (m.role === 'section_leader') q.whereIn('a.id', db('assignment_assignees as aa').join('memberships as mb', 'mb.user_id', 'aa.user_id').where('mb.ensemble_id', m.ensembleId).andWhere('mb.section_id', m.sectionId ?? -1).select('aa.assignment_id'))
+      else q.whereIn('a.id', db('assignment_assignees').where('user_id', m.userId).select('assignment_id'))
+    })
     .orderBy('a.created_at', 'desc').orderBy('a.id', 'desc')
     .select('a.id', db.raw('coalesce(a.title, d.title) as title'), 'a.drill_id as drillId')
   const sections = await db('sections').where({ ensemble_id: m.ensembleId })
@@ -38,12 +44,13 @@ export async function chartChoices (db: Knex, m: Membership): Promise<ChartChoic
 
 /** Who each assignment in scope asks for, and who has sent at least one take for it. */
 export async function participation (db: Knex, f: HoldFilters): Promise<Participation[]> {
+  const assignees = await hasAssignees(db)
   const assignments = await db('assignments as a').join('drills as d', 'd.id', 'a.drill_id')
     .where('a.ensemble_id', f.ensembleId).whereNull('a.archived_at')
     .modify((q) => {
       if (f.assignmentId) q.andWhere('a.id', f.assignmentId)
       if (f.drillId) q.andWhere('a.drill_id', f.drillId)
-      if (f.sectionId) q.andWhere(w => w.whereNull('a.section_id').orWhere('a.section_id', f.sectionId!))
+      if (f.sectionId && !assignees) q.andWhere(w => w.whereNull('a.section_id').orWhere('a.section_id', f.sectionId!))
     })
     .orderBy('a.created_at', 'desc').orderBy('a.id', 'desc')
     .select('a.id', db.raw('coalesce(a.title, d.title) as title'), 'a.drill_id as drillId', 'a.section_id as sectionId', 'a.due_at as dueAt') as Array<{ id: number, title: string, drillId: number, sectionId: number | null, dueAt: string | null }>
@@ -58,11 +65,15 @@ export async function participation (db: Knex, f: HoldFilters): Promise<Particip
   const sent = await db('takes').where('ensemble_id', f.ensembleId).whereNull('withdrawn_at')
     .whereIn('assignment_id', assignments.map(a => a.id)).distinct('assignment_id', 'user_id')
   const done = new Set(sent.map(r => `${r.assignment_id}:${r.user_id}`))
+  const listed = new Set(assignees
+    ? (await db('assignment_assignees').whereIn('assignment_id', assignments.map(a => a.id)).select('assignment_id', 'user_id')).map(r => `${r.assignment_id}:${r.user_id}`)
+    : [])
   const out: Participation[] = []
   for (const a of assignments) {
-    const asked = people.filter(p => a.sectionId == null || p.sectionId === a.sectionId)
-    // A player outside the assignment's section is not asked, so neither counted nor missing.
-    if (!asked.length && f.userId) continue
+    // Who was asked: the assignment's assignees where they are recorded, else its section (or everyone).
+    const asked = people.filter(p => (assignees ? listed.has(`${a.id}:${p.userId}`) : a.sectionId == null || p.sectionId === a.sectionId))
+    // An assignment that asks nobody in view (another section's, another player's) is not shown.
+    if (!asked.length && (f.userId || f.sectionId)) continue
     const missing = asked.filter(p => !done.has(`${a.id}:${p.userId}`))
     out.push({
       assignmentId: a.id, title: a.title, drillId: a.drillId, sectionId: a.sectionId ?? null, dueAt: a.dueAt ?? null,
@@ -146,6 +157,11 @@ export async function chartSeries (db: Knex, f: HoldFilters, s: Scoring): Promis
     participation: await participation(db, f),
     notRescored,
   }
+}
+
+/** Assignments record their assignees one by one once that table exists (a later migration). */
+async function hasAssignees (db: Knex): Promise<boolean> {
+  return db.schema.hasTable('assignment_assignees')
 }
 
 function add (a: Acc, cents: number, within: boolean) {

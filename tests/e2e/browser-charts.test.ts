@@ -11,6 +11,7 @@ import type { Browser, Page } from 'playwright-core'
 import { demoPassword, launchBrowser, startApp, type App } from './harness'
 import { seedVolume, VOLUME_DIRECTOR } from '../../scripts/seed-volume'
 import { dbQuery } from './takes-helpers'
+import { recordAssignees } from './charts-helpers'
 
 let app: App
 let browser: Browser
@@ -27,6 +28,7 @@ beforeAll(async () => {
   const drill = raw.prepare('select id from drills order by id limit 1').get() as { id: number }
   const now = new Date().toISOString()
   const a = Number(raw.prepare('insert into assignments (ensemble_id, drill_id, title, created_at, updated_at) values (?, ?, ?, ?, ?)').run(ens.id, drill.id, 'Everyone: the first drill', now, now).lastInsertRowid)
+  recordAssignees(raw, ens.id, [[a, null]])
   raw.prepare('update takes set assignment_id = ? where id in (select min(id) from takes group by user_id limit 4)').run(a)
   raw.close()
   app = await startApp({ dir, seed: false })
@@ -127,7 +129,7 @@ describe('charts in the browser', () => {
     // Within ± tolerance is in tune (the meaning of a tolerance, common practice): every cell whose
     // number is within ±50 ¢ is now drawn in tune, and the others flat or sharp by their sign.
     const misdrawn = async () => (await cells.evaluateAll(els => els.map(e => [e.textContent ?? '', e.getAttribute('data-token') ?? ''])))
-      .filter(([text, token]) => {
+      .filter(([text = '', token = '']) => {
         const v = Number(text.trim().split(' ')[0]!.replace('\u2212', '-'))
         return Math.abs(v) <= 50 ? token !== 'in-tune' : !token.startsWith(v < 0 ? 'flat' : 'sharp')
       }).length

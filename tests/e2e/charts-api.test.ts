@@ -10,6 +10,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { startApp, type App } from './harness'
 import { seedVolume, VOLUME_DIRECTOR } from '../../scripts/seed-volume'
 import { dbQuery } from './takes-helpers'
+import { recordAssignees } from './charts-helpers'
 
 interface Hold { index: number, member: string | null, centsFromTarget: number | null, centsFromEqual: number | null, withinTolerance: boolean | null, reasonCode?: string | null }
 interface Take { id: number, createdAt: string, part: string, drill: { id: number }, player: { id: number }, report: { holds: Hold[], tolerance: number, summary: { driftCentsPerMin: number | null } } }
@@ -43,6 +44,7 @@ beforeAll(async () => {
   const now = new Date().toISOString()
   assignments.all = Number(ins.run(ens.id, drill.id, null, 'Whole choir: cadence', '2026-03-09T18:00:00.000Z', now, now).lastInsertRowid)
   assignments.section = Number(ins.run(ens.id, drill.id, secs[1]!.id, 'Second section: cadence', null, now, now).lastInsertRowid)
+  recordAssignees(raw, ens.id, [[assignments.all, null], [assignments.section, secs[1]!.id]])
   const firstTakes = raw.prepare('select min(t.id) as id, t.user_id from takes t group by t.user_id order by t.user_id').all() as Array<{ id: number, user_id: number }>
   firstTakes.slice(0, 6).forEach(t => raw.prepare('update takes set assignment_id = ? where id = ?').run(assignments.all, t.id))
   raw.prepare('update takes set withdrawn_at = ? where id = ?').run(now, firstTakes[5]!.id)
