@@ -93,6 +93,9 @@ const MATRIX: Row[] = [
   // ---- review ----
   ['POST /api/takes/[id]/reviews',                   401, 403, 201, 403, 201, 404, 201, 401], // the player's take: never by the player; a new review each
   ['GET /api/reviews/queue',                         401, 403, 200, 403, 200, 404, 200, 401], // the player's section
+  // ---- charts ----
+  ['GET /api/ensembles/[id]/charts',                 401, 200, 200, 403, 200, 404, 200, 401], // the player's series
+  ['GET /api/ensembles/[id]/charts/choices',         401, 200, 200, 200, 200, 404, 200, 401], // each member gets their own choices
 ]
 
 // ---- the routes on disk ----------------------------------------------------------------------
@@ -380,6 +383,9 @@ const CALLS: Record<string, Call> = {
   // ---- review ----
   'POST /api/takes/[id]/reviews': { path: () => `/api/takes/${ids.take}/reviews`, body: () => ({ verdict: 'approved', notes: [{ body: 'Matrix note' }] }), before: ready },
   'GET /api/reviews/queue': { path: () => `/api/reviews/queue?sectionId=${ids.playerSection}` },
+  // ---- charts ----
+  'GET /api/ensembles/[id]/charts': { path: () => `/api/ensembles/${ids.ensemble}/charts?userId=${ids.player}` },
+  'GET /api/ensembles/[id]/charts/choices': { path: () => `/api/ensembles/${ids.ensemble}/charts/choices` },
 }
 
 // An assignment of X to the player's section, made once by its director.
