@@ -189,7 +189,7 @@ async function targetsFor (db: Knex, cache: Map<string, TargetsResult | null>, d
 const generations = new WeakMap<Knex, { n: number }>()
 // Writes to the tables the figures are made from. The job queue, sessions and the audit log are
 // written all the time (the analysis pool polls every second) and change no figure.
-const FIGURE_WRITE = /^\s*(insert\s+into|update|delete\s+from|replace\s+into|alter\s+table|drop\s+table|create\s+table)\s+[`"]?(takes|analyses|hold_results|memberships|users|sections|drills|drill_[a-z_]+|assignments)\b/i
+const FIGURE_WRITE = /^\s*(insert\s+into|update|delete\s+from|replace\s+into|alter\s+table|drop\s+table|create\s+table)\s+[`"]?(takes|analyses|hold_results|memberships|users|sections|drills|drill_[a-z_]+|assignments|assignment_[a-z_]+)\b/i
 
 /**
  * A fingerprint of the database's contents for cached figures, cheap enough to check on every

@@ -112,6 +112,12 @@ describe('on a 390-px phone', () => {
     const wide = await overflow(page)
     expect(wide.escaped).toEqual([])
     expect(wide.scrollWidth).toBe(800)
+    // From 1024 px the header shows every section's link in a row that wraps rather than overflows.
+    await page.setViewportSize({ width: 1024, height: 1000 })
+    await page.getByRole('navigation', { name: 'Main', exact: true }).waitFor()
+    const desk = await overflow(page)
+    expect(desk.escaped).toEqual([])
+    expect(desk.scrollWidth).toBe(1024)
     await page.context().close()
   })
 
