@@ -74,7 +74,7 @@ export class StatsBuilder {
   private members = new Map<string, number[]>()
   private players = new Map<number, { name: string, section: string | null, takes: Set<number>, a: Acc }>()
   private weeks = new Map<string, { takes: Set<number>, a: Acc }>()
-  private holdsByKey = new Map<string, { drillId: number, chordIndex: number, part: string, member: string | null, a: Acc }>()
+  private holdsByKey = new Map<string, { drillId: number, chordIndex: number, part: string, member: string | null, sections: Set<string>, a: Acc }>()
   private seen = new Map<number, { player: { a: Acc }, week: { a: Acc } }>()
 
   /** Counts a take (once, however often it is added), scored holds or not. */
@@ -108,7 +108,8 @@ export class StatsBuilder {
     add(week.a, r)
     const key = `${r.drillId}\u0000${r.chordIndex}\u0000${r.part}`
     let h = this.holdsByKey.get(key)
-    if (!h) this.holdsByKey.set(key, h = { drillId: r.drillId, chordIndex: r.chordIndex, part: r.part, member: r.member, a: acc() })
+    if (!h) this.holdsByKey.set(key, h = { drillId: r.drillId, chordIndex: r.chordIndex, part: r.part, member: r.member, sections: new Set(), a: acc() })
+    if (r.section) h.sections.add(r.section)
     add(h.a, r)
   }
 
@@ -132,7 +133,7 @@ export class StatsBuilder {
       .sort(([a], [b]) => a.localeCompare(b))
       .map(([weekStart, w]) => ({ weekStart, takes: w.takes.size, meanAbsCents: w.a.n ? r2(w.a.abs / w.a.n) : null, meanCents: w.a.n ? r2(w.a.sum / w.a.n) : null }))
     const worstHolds: WorstHold[] = [...this.holdsByKey.values()]
-      .map(h => ({ drillId: h.drillId, chordIndex: h.chordIndex, part: h.part, member: h.member, n: h.a.n, outShare: (h.a.n - h.a.within) / h.a.n, meanCents: h.a.sum / h.a.n }))
+      .map(h => ({ drillId: h.drillId, chordIndex: h.chordIndex, part: h.part, member: h.member, sections: [...h.sections].sort((a, b) => a.localeCompare(b)), n: h.a.n, outShare: (h.a.n - h.a.within) / h.a.n, meanCents: h.a.sum / h.a.n }))
       .filter(h => h.outShare > 0)
       .sort((a, b) => b.outShare - a.outShare || b.n - a.n || Math.abs(b.meanCents) - Math.abs(a.meanCents) || a.drillId - b.drillId || a.chordIndex - b.chordIndex || a.part.localeCompare(b.part))
       .slice(0, WORST_HOLDS)

@@ -1,12 +1,13 @@
 // The charts screen's filters: read from the address (so a view can be bookmarked, shared and
 // printed), turned into the stats/charts query, and checked with the routes' own schema.
 import { StatsQuery } from '#shared/schemas/stats'
+import { parseScala } from '#shared/tuning/scala'
 import type { EnsembleRole } from '#shared/types/user'
 
 export type ChartView = 'player' | 'section' | 'ensemble'
 
 /** Filter fields the address carries besides the ensemble and the view. */
-export const FILTER_KEYS = ['sectionId', 'userId', 'drillId', 'assignmentId', 'from', 'to', 'system', 'seventh', 'tonic', 'start', 'wolf', 'fraction', 'a4', 'tolerance'] as const
+export const FILTER_KEYS = ['sectionId', 'userId', 'drillId', 'assignmentId', 'from', 'to', 'system', 'seventh', 'tonic', 'start', 'wolf', 'fraction', 'scala', 'a4', 'tolerance'] as const
 export type FilterKey = typeof FILTER_KEYS[number]
 export type ChartFilters = Partial<Record<FilterKey, string>>
 
@@ -44,7 +45,7 @@ export function apiQuery(view: ChartView, f: ChartFilters, defaults: { userId?: 
     if (s) q.sectionId = s
   }
   // Options of a tuning system mean nothing without the system.
-  if (!q.system) for (const k of ['seventh', 'tonic', 'start', 'wolf', 'fraction'] as const) delete q[k]
+  if (!q.system) for (const k of ['seventh', 'tonic', 'start', 'wolf', 'fraction', 'scala'] as const) delete q[k]
   return q
 }
 
@@ -60,12 +61,22 @@ export function filterErrors(q: Record<string, string>): Record<string, string> 
   return out
 }
 
-const FIELD_WORDS: Record<string, string> = { from: 'From', to: 'To', a4: 'A4', tolerance: 'Tolerance', tonic: 'Tonic', start: 'Start note', wolf: 'Wolf', fraction: 'Comma fraction' }
+const FIELD_WORDS: Record<string, string> = { from: 'From', to: 'To', a4: 'A4', tolerance: 'Tolerance', tonic: 'Tonic', start: 'Start note', wolf: 'Wolf', fraction: 'Comma fraction', scala: 'Scala file' }
 function plainFilterMessage(key: string, message: string): string {
   if (key === 'a4') return 'A4 must be a number from 415 to 466 Hz.'
   if (key === 'tolerance') return 'Tolerance must be a number from 0.01 to 50 cents.'
   if (key === 'from' || key === 'to') return message.includes('before') ? '“To” must not be before “From”.' : `${FIELD_WORDS[key]} must be a date such as 2026-03-01.`
   return `${FIELD_WORDS[key] ?? key}: ${message}`
+}
+
+/** "name: description (N pitches)" of a Scala filter's text, or null when it does not parse. */
+export function scalaSummary(text: string | undefined): string | null {
+  if (!text) return null
+  try {
+    const scale = parseScala(text)
+    return `${scale.description || 'a Scala scale'} (${scale.degrees.length} pitches)`
+  }
+  catch { return null }
 }
 
 /** A query string with the keys in a stable order. */

@@ -6,7 +6,7 @@ import type { Knex } from 'knex'
 import type { Membership } from './auth'
 import type { ChartChoices, ChartSeries, ChartTake, GridCell, Participation, SectionFigures } from '../../shared/types/charts'
 import { r2 } from '../../shared/stats'
-import { forEachHoldBatch, type HoldFilters, type Scoring } from './stats'
+import { forEachHoldBatch, needsRescore, type HoldFilters, type Scoring } from './stats'
 
 interface Acc { n: number, sum: number, abs: number, within: number }
 const acc = (): Acc => ({ n: 0, sum: 0, abs: 0, within: 0 })
@@ -129,7 +129,13 @@ export async function chartSeries (db: Knex, f: HoldFilters, s: Scoring): Promis
         add(g.a, r.centsFromTarget, r.withinTolerance)
       }
     }
-    if (wantTakes && batch.length) {
+    if (wantTakes && needsRescore(s)) {
+      // Re-scored rows carry the drift re-fitted under the system asked for.
+      for (const bt of batch) {
+        const t = takes.get(bt.takeId)
+        if (t && bt.driftCentsPerMin != null && Number.isFinite(bt.driftCentsPerMin)) t.driftCentsPerMin = r2(bt.driftCentsPerMin)
+      }
+    } else if (wantTakes && batch.length) {
       const drift = await db('analyses').where('is_current', 1).whereIn('take_id', batch.map(t => t.takeId)).select('take_id', 'drift_cents_per_min')
       for (const d of drift) {
         const t = takes.get(d.take_id)

@@ -101,7 +101,9 @@ export async function forEachHoldBatch (db: Knex, f: HoldFilters, scoring: Scori
         const measurement = JSON.parse(t.measurement) as Measurement
         let report
         try { report = scoreMeasurement(measurement, targets, t.part, scoring.tolerance ?? t.storedTolerance) } catch { notRescored++; continue }
-        scored.push({ takeId: t.takeId, submittedAt: t.submittedAt, userId: t.userId, player: t.player, section: t.section ?? null, drillId: t.drillId, part: t.part })
+        // The drift is re-fitted too: the same holds' slope against the new targets (a system
+        // whose targets move from chord to chord changes it).
+        scored.push({ takeId: t.takeId, submittedAt: t.submittedAt, userId: t.userId, player: t.player, section: t.section ?? null, drillId: t.drillId, part: t.part, driftCentsPerMin: report.summary.driftCentsPerMin })
         report.holds.forEach((h, i) => {
           if (h.centsFromTarget == null || h.centsFromEqual == null || Math.abs(h.centsFromEqual) > WRONG_NOTE_CENTS) return
           rows.push({

@@ -21,13 +21,14 @@ export const StatsQuery = z.strictObject({
   start: z.string().min(1).max(4).optional(),
   wolf: z.string().min(1).max(4).optional(),
   fraction: z.string().min(1).max(12).optional(),
-  scala: z.string().min(1).max(20_000).optional(),
+  scala: z.string().min(1).max(20_000, 'too long for a filter (20,000 characters at most)').optional(),
   a4: Num(A4_MIN, A4_MAX).optional(),
   tolerance: Num(0.01, 50).optional(),
 }).superRefine((q, ctx) => {
   if (q.from && q.to && rangeStart(q.from) >= rangeEnd(q.to)) {
     ctx.addIssue({ code: 'custom', path: ['to'], message: '"to" must not be before "from"' })
   }
+  if (q.system === 'scala' && !q.scala) ctx.addIssue({ code: 'custom', path: ['scala'], message: 'choose a Scala .scl file to score against' })
   for (const k of ['seventh', 'tonic', 'start', 'wolf', 'fraction', 'scala'] as const) {
     if (q[k] !== undefined && !q.system) ctx.addIssue({ code: 'custom', path: [k], message: `"${k}" is an option of a tuning system: give "system" too` })
   }

@@ -40,6 +40,8 @@ export interface WorstHold {
   chordIndex: number
   part: string
   member: string | null
+  /** The sections of the players whose takes sang or played this hold, by name. */
+  sections: string[]
   n: number
   /** Share (0–1) of the takes' measurements of this hold outside ± tolerance. */
   outShare: number
@@ -64,6 +66,8 @@ export interface StatTakeRow {
   section: string | null
   drillId: number
   part: string
+  /** The take's drift re-fitted under the scoring asked for (re-scored rows only; cents per minute). */
+  driftCentsPerMin?: number | null
 }
 
 /** One scored hold (found, not a wrong note) of one take, with what the figures group by. */

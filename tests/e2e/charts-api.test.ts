@@ -92,6 +92,34 @@ describe('GET /api/ensembles/:id/charts', () => {
     }
   })
 
+  // A Scala file of a 12-note 5-limit just scale (the ratios 16/15, 9/8, 6/5, 5/4, 4/3, 45/32, 3/2,
+  // 8/5, 5/3, 9/5, 15/8: the common practice "just major/minor" set; format after the Scala .scl
+  // specification: description, count, one pitch per line, the octave last).
+  const JUST_SCL = '! just12.scl\nJust twelve, 5-limit\n 12\n!\n16/15\n9/8\n6/5\n5/4\n4/3\n45/32\n3/2\n8/5\n5/3\n9/5\n15/8\n2/1\n'
+  for (const [label, query, system] of [
+    ['Pythagorean at A4 = 442', 'system=pythagorean&a4=442', { name: 'pythagorean' }],
+    ['a Scala scale', `system=scala&scala=${encodeURIComponent(JUST_SCL)}`, { name: 'scala', scala: JUST_SCL }],
+  ] as const) {
+    it(`re-fits each take’s drift under ${label}, as the take’s own re-score does`, async () => {
+      const player = singers().find(m => m.role === 'player')!
+      const body = await (await charts(`?userId=${player.userId}&${query}`)).json()
+      const mine = takes.filter(t => t.player.id === player.userId).sort((a, b) => a.createdAt.localeCompare(b.createdAt) || a.id - b.id)
+      expect(body.takes.map((t: { takeId: number }) => t.takeId)).toEqual(mine.map(t => t.id))
+      let moved = 0
+      for (const [i, t] of mine.entries()) {
+        const res = await app.fetch(`/api/takes/${t.id}/rescore`, { method: 'POST', cookie: director, headers: { 'content-type': 'application/json' }, body: JSON.stringify({ system, ...(query.includes('a4=442') ? { a4: 442 } : {}) }) })
+        expect(res.status).toBe(200)
+        const want = (await res.json()).report.summary.driftCentsPerMin as number | null
+        const got = body.takes[i].driftCentsPerMin
+        if (want == null) expect(got).toBeNull()
+        else near(got, want)
+        if (want != null && t.report.summary.driftCentsPerMin != null && Math.abs(want - t.report.summary.driftCentsPerMin) > 0.01) moved++
+      }
+      // Targets that move from chord to chord change the slope: the figure is not the analysed one.
+      expect(moved).toBeGreaterThan(0)
+    })
+  }
+
   it('gives a section’s hold × player grid: each player’s mean on each hold over their takes', async () => {
     const s = sections[2]!
     const body = await (await charts(`?sectionId=${s.id}`)).json()

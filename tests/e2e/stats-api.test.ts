@@ -161,6 +161,9 @@ describe('GET /api/ensembles/:id/stats', () => {
       expect(w.n).toBe(hs.length)
       near(w.outShare, hs.filter(x => Math.abs(x.h.centsFromTarget!) > x.tol).length / hs.length)
       near(w.meanCents, mean(hs.map(x => x.h.centsFromTarget!)))
+      const sung = takes.filter(t => t.drill.id === w.drillId && t.part === w.part && t.report.holds.some(h => h.index === w.chordIndex && scored(h)))
+      const sectionNames = [...new Set(sung.map(t => members.get(t.player.id)!.section).filter(Boolean))].sort((a, b) => a.localeCompare(b))
+      expect(w.sections).toEqual(sectionNames)
       expect(w.outShare).toBeLessThanOrEqual(last)
       last = w.outShare
     }

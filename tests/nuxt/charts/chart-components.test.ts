@@ -141,10 +141,10 @@ describe('section and ensemble charts', () => {
     expect(rowsOf(w.get('[data-testid="sections-table"]'))).toEqual([['Soprano', '3', '9', '90', '14.1 ¢', '+13.7 ¢ sharp', '42 %']])
   })
 
-  it('names drill, chord, part and member of the holds most often out of tolerance', async () => {
-    const w = await mountSuspended(ChartsWorstHolds, { props: { tolerance: 10, drillTitle: titles, tableOpen: true, holds: [{ drillId: 7, chordIndex: 2, part: 'Tenor', member: 'third', n: 12, outShare: 0.75, meanCents: ET_THIRD_OVER_JUST }] } })
+  it('names drill, chord, part, sections and member of the holds most often out of tolerance', async () => {
+    const w = await mountSuspended(ChartsWorstHolds, { props: { tolerance: 10, drillTitle: titles, tableOpen: true, holds: [{ drillId: 7, chordIndex: 2, part: 'Tenor', member: 'third', sections: ['Tenor 1', 'Tenor 2'], n: 12, outShare: 0.75, meanCents: ET_THIRD_OVER_JUST }] } })
     expect(w.get('button[aria-expanded]').attributes('aria-expanded')).toBe('true')
-    expect(rowsOf(w.get('[data-testid="worst-holds-table"]'))[0]).toEqual(['Cadence', '3', 'Tenor', 'third', '12', '75 %', '+13.7 ¢ sharp'])
+    expect(rowsOf(w.get('[data-testid="worst-holds-table"]'))[0]).toEqual(['Cadence', '3', 'Tenor', 'Tenor 1, Tenor 2', 'third', '12', '75 %', '+13.7 ¢ sharp'])
   })
 
   it('counts who was asked and names who has not sent a take', async () => {

@@ -51,6 +51,40 @@ describe('ChartsFilters', () => {
     expect(s.find('select[id$="-userId"]').exists()).toBe(false)
   })
 
+  // A 12-note 5-limit just scale in the Scala .scl format (description, count, pitches, the
+  // octave last: the format's published specification); the ratios are common practice.
+  const JUST_SCL = '! just12.scl\nJust twelve, 5-limit\n 12\n!\n16/15\n9/8\n6/5\n5/4\n4/3\n45/32\n3/2\n8/5\n5/3\n9/5\n15/8\n2/1\n'
+  const chooseFile = async (w: Awaited<ReturnType<typeof mount>>, text: string, name = 'just12.scl') => {
+    const input = w.get('input[id$="-scala"]')
+    Object.defineProperty(input.element, 'files', { value: [new File([text], name, { type: 'text/plain' })], configurable: true })
+    await input.trigger('change')
+    await new Promise(r => setTimeout(r, 20))
+    await w.vm.$nextTick()
+  }
+
+  it('scores under a Scala scale read from a .scl file, sent as the file’s text', async () => {
+    const w = await mount()
+    await w.get('select[id$="-system"]').setValue('scala')
+    await chooseFile(w, JUST_SCL)
+    expect(w.get('[data-testid="scala-loaded"]').text()).toContain('Just twelve, 5-limit (12 pitches)')
+    await w.get('input[id$="-tonic"]').setValue('D')
+    await w.get('form').trigger('submit')
+    expect(w.emitted('apply')?.[0]?.[0]).toEqual({ system: 'scala', scala: JUST_SCL.trim(), tonic: 'D' })
+  })
+
+  it('refuses a file that is not a Scala scale, and a Scala system with no file, beside the field', async () => {
+    const w = await mount()
+    await w.get('select[id$="-system"]').setValue('scala')
+    await chooseFile(w, 'not a scale\nat all\n', 'notes.txt')
+    const input = w.get('input[id$="-scala"]')
+    expect(input.attributes('aria-invalid')).toBe('true')
+    expect(w.text()).toContain('This is not a Scala .scl file')
+    await w.get('form').trigger('submit')
+    expect(w.emitted('apply')).toBeUndefined()
+    expect(w.text()).toMatch(/Scala/)
+    w.unmount()
+  })
+
   it('clears every filter at once', async () => {
     const w = await mountSuspended(ChartsFilters, { props: { view: 'ensemble', filters: { drillId: '7', tolerance: '5' }, choices, defaults: {} } })
     await w.findAll('button').find(b => b.text() === 'Clear filters')!.trigger('click')

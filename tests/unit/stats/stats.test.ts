@@ -72,6 +72,16 @@ describe('buildStats', () => {
     expect(s.players.find(p => p.userId === 1)).toMatchObject({ takes: 2, holds: 3, meanAbsCents: 6, meanCents: -2, withinShare: 0.67 })
     expect(s.members.map(m => m.member)).toEqual(['root', 'third'])
     expect(s.weeks).toEqual([{ weekStart: '2026-03-02', takes: 3, meanAbsCents: 6, meanCents: -2 }])
-    expect(s.worstHolds).toEqual([{ drillId: 1, chordIndex: 1, part: 'Alto', member: 'third', n: 1, outShare: 1, meanCents: -12 }])
+    expect(s.worstHolds).toEqual([{ drillId: 1, chordIndex: 1, part: 'Alto', member: 'third', sections: ['Alto'], n: 1, outShare: 1, meanCents: -12 }])
+  })
+  it('names every section whose players sang an out-of-tolerance hold, once each and sorted', () => {
+    const s = buildStats([], [
+      row({ chordIndex: 2, section: 'Tenor 2', centsFromTarget: 15, withinTolerance: false }),
+      row({ takeId: 2, chordIndex: 2, section: 'Tenor 1', centsFromTarget: 12, withinTolerance: false }),
+      row({ takeId: 3, chordIndex: 2, section: 'Tenor 2', centsFromTarget: 3 }),
+      row({ takeId: 4, chordIndex: 2, section: null, centsFromTarget: 30, withinTolerance: false }),
+    ])
+    expect(s.worstHolds).toHaveLength(1)
+    expect(s.worstHolds[0]).toMatchObject({ chordIndex: 2, sections: ['Tenor 1', 'Tenor 2'], n: 4, outShare: 0.75 })
   })
 })
