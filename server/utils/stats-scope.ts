@@ -74,26 +74,31 @@ export async function statsRequest (event: H3Event): Promise<{ db: Knex, ensembl
   return { db, ensembleId: id, filters: scope.value, scoring: scoring.value }
 }
 
-interface CacheEntry { fingerprint: string, at: number, value: Promise<EnsembleStats & { notRescored: number }> }
+interface CacheEntry { fingerprint: string, at: number, value: Promise<unknown> }
 const CACHE_MAX = 200
 const CACHE_MS = 10 * 60_000
 const cache = new Map<string, CacheEntry>()
 
 /**
- * The statistics for the filters and scoring. A result is kept while nothing in the database has
- * changed (checked on every call) and for ten minutes at most; a second caller asking the same
- * while it is computed shares the work.
+ * A figure (`kind`: statistics, chart series) for the filters and scoring, computed once. A result
+ * is kept while nothing in the database has changed (checked on every call) and for ten minutes at
+ * most; a second caller asking the same while it is computed shares the work.
  */
-export async function ensembleStats (db: Knex, f: HoldFilters, s: Scoring): Promise<EnsembleStats & { notRescored: number }> {
-  const key = JSON.stringify([f, s.system ?? null, s.a4 ?? null, s.tolerance ?? null])
+export async function cachedFigures<T> (kind: string, db: Knex, f: HoldFilters, s: Scoring, compute: () => Promise<T>): Promise<T> {
+  const key = JSON.stringify([kind, f, s.system ?? null, s.a4 ?? null, s.tolerance ?? null])
   const fingerprint = await statsFingerprint(db)
   const hit = cache.get(key)
-  if (hit && hit.fingerprint === fingerprint && Date.now() - hit.at < CACHE_MS) return hit.value
-  const value = computeStats(db, f, s)
+  if (hit && hit.fingerprint === fingerprint && Date.now() - hit.at < CACHE_MS) return hit.value as Promise<T>
+  const value = compute()
   cache.set(key, { fingerprint, at: Date.now(), value })
   value.catch(() => cache.delete(key))
   while (cache.size > CACHE_MAX) cache.delete(cache.keys().next().value!)
   return value
+}
+
+/** The ensemble statistics for the filters and scoring (cached, see cachedFigures). */
+export function ensembleStats (db: Knex, f: HoldFilters, s: Scoring): Promise<EnsembleStats & { notRescored: number }> {
+  return cachedFigures('stats', db, f, s, () => computeStats(db, f, s))
 }
 
 async function computeStats (db: Knex, f: HoldFilters, s: Scoring) {

@@ -5,7 +5,7 @@
 // view shows it. The assignment pages also fit a 390-px phone.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, BrowserContext, Page } from 'playwright-core'
-import { CHROMIUM, CHROMIUM_ARGS, demoPassword, startApp, type App } from './harness'
+import { appReady, CHROMIUM, CHROMIUM_ARGS, demoPassword, startApp, type App } from './harness'
 import { dbQuery } from './takes-helpers'
 
 const DIRECTOR = 'helena.marsh@example.org'
@@ -46,6 +46,7 @@ async function newPage(width = 1280, height = 900): Promise<{ context: BrowserCo
 
 async function signIn(page: Page, email: string) {
   await page.goto(`${app.url}/login`)
+  await appReady(page)
   await page.getByLabel('E-mail').fill(email)
   await page.getByLabel('Password').fill(demoPassword())
   await page.getByLabel('Password').press('Enter')
@@ -67,6 +68,7 @@ describe('assigning a drill and recording against it', () => {
     const { context, page } = await newPage()
     await signIn(page, DIRECTOR)
     await page.goto(`${app.url}/drills/new`)
+    await appReady(page)
     await page.getByLabel('Title', { exact: true }).fill(TITLE)
     await cell(page, 0, 0).click()
     await typeChord(page, ['e4', 'c4', 'g3', 'c3']) // I in C major (common practice voicing)

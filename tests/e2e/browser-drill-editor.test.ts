@@ -3,7 +3,7 @@
 // there first; the editor and the drill page also fit a 390-px phone.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, BrowserContext, Page } from 'playwright-core'
-import { demoPassword, launchBrowser, startApp, type App } from './harness'
+import { appReady, demoPassword, launchBrowser, startApp, type App } from './harness'
 
 const DIRECTOR = 'helena.marsh@example.org'
 let app: App
@@ -38,6 +38,7 @@ async function newPage(width = 1280, height = 900): Promise<{ context: BrowserCo
 
 async function signIn(page: Page) {
   await page.goto(`${app.url}/login`)
+  await appReady(page)
   await page.getByLabel('E-mail').fill(DIRECTOR)
   await page.getByLabel('Password').fill(demoPassword())
   await page.getByLabel('Password').press('Enter')
@@ -122,6 +123,7 @@ describe('writing a drill in the voicing grid', () => {
     const { context, page } = await newPage()
     await signIn(page)
     await page.goto(`${app.url}/drills/edit/${drillId}`)
+    await appReady(page)
     await page.getByLabel('Title', { exact: true }).fill('Four chords in C, mine')
 
     // Meanwhile another director saves version 2.
@@ -150,12 +152,14 @@ describe('writing a drill in the voicing grid', () => {
     const { context, page } = await newPage(390, 844)
     await signIn(page)
     await page.goto(`${app.url}/drills/new`)
+    await appReady(page)
     await cell(page, 0, 0).click()
     await typeChord(page, ['a4', 'f4', 'c4', 'f3'])
     expect(await cell(page, 3, 0).textContent()).toContain('F3')
     expect(await pageWidth(page)).toBe(390)
 
     await page.goto(`${app.url}/drills/edit/${drillId}`)
+    await appReady(page)
     await cell(page, 0, 0).waitFor()
     expect(await pageWidth(page)).toBe(390)
 

@@ -3,7 +3,7 @@
 // audit log holds both changes. Every new ensemble screen is also checked at phone width (390 px).
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
-import { demoAccounts, demoPassword, launchBrowser, startApp, type App } from './harness'
+import { appReady, demoAccounts, demoPassword, launchBrowser, startApp, type App } from './harness'
 
 let app: App
 let browser: Browser
@@ -23,6 +23,7 @@ afterAll(async () => {
 
 async function signIn(page: Page, email: string, password = demoPassword()) {
   await page.goto(`${app.url}/login`)
+  await appReady(page)
   await page.getByLabel('E-mail').fill(email)
   await page.getByLabel('Password').fill(password)
   await page.getByRole('button', { name: 'Sign in' }).click()

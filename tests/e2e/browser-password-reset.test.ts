@@ -2,7 +2,7 @@
 // all through the pages in Chromium.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
-import { demoAccounts, demoPassword, launchBrowser, startApp, type App } from './harness'
+import { appReady, demoAccounts, demoPassword, launchBrowser, startApp, type App } from './harness'
 
 let app: App
 let browser: Browser
@@ -27,6 +27,7 @@ afterAll(async () => {
 
 async function signIn(page: Page, email: string, password: string) {
   await page.goto(`${app.url}/login`)
+  await appReady(page)
   await page.getByLabel('E-mail').fill(email)
   await page.getByLabel('Password').fill(password)
   await page.getByRole('button', { name: 'Sign in' }).click()

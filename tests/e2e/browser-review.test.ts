@@ -4,7 +4,7 @@
 // desktop screen through the main navigation.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
-import { demoPassword, launchBrowser, startApp, type App } from './harness'
+import { appReady, demoPassword, launchBrowser, startApp, type App } from './harness'
 import { retryStaleSockets, waitForTake } from './takes-helpers'
 
 const LEADER = 'aisha.bello@example.org' // leads the Sopranos
@@ -39,6 +39,7 @@ async function signIn(email: string, width: number): Promise<Page> {
   page.setDefaultTimeout(60_000)
   page.setDefaultNavigationTimeout(90_000)
   await page.goto(`${app.url}/login`)
+  await appReady(page)
   await page.getByLabel('E-mail').fill(email)
   await page.getByLabel('Password').fill(demoPassword())
   await page.getByLabel('Password').press('Enter')

@@ -8,7 +8,7 @@
 // database), and the page shows the take analysed.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
-import { demoAccounts, demoPassword, launchBrowser, startApp, type App } from './harness'
+import { appReady, demoAccounts, demoPassword, launchBrowser, startApp, type App } from './harness'
 import { cents, retryStaleSockets } from './takes-helpers'
 import { synthTakeWithTruth, type SynthSpec } from '../../server/analysis/synth'
 import { encodeWav } from '../../server/analysis/wav'
@@ -74,6 +74,7 @@ async function newPage(): Promise<Page> {
 
 async function signIn(page: Page) {
   await page.goto(`${app.url}/login`)
+  await appReady(page)
   await page.getByLabel('E-mail').fill(player.email)
   await page.getByLabel('Password').fill(demoPassword())
   await page.getByLabel('Password').press('Enter')

@@ -228,3 +228,21 @@ describe('GET /api/ensembles/:id/charts/choices', () => {
     expect(own.tolerance).toBe(10)
   })
 })
+
+describe('cached figures', () => {
+  // Runs last: it withdraws a take. A cached answer must never outlive a change to the takes.
+  it('drops a player’s withdrawn take from the charts and the statistics at the next request', async () => {
+    const player = singers().find(m => m.role === 'player')!
+    const cookie = await app.login(player.email)
+    const before = await (await charts(`?userId=${player.userId}`)).json()
+    const stats = async () => (await app.fetch(`/api/ensembles/${ensembleId}/stats?userId=${player.userId}`, { cookie: director })).json()
+    const statsBefore = await stats()
+    expect(await (await charts(`?userId=${player.userId}`)).json()).toEqual(before) // the same answer again
+    const last = before.takes[before.takes.length - 1].takeId as number
+    const w = await app.fetch(`/api/takes/${last}/withdraw`, { method: 'POST', cookie })
+    expect(w.status).toBe(200)
+    const after = await (await charts(`?userId=${player.userId}`)).json()
+    expect(after.takes.map((t: { takeId: number }) => t.takeId)).toEqual(before.takes.map((t: { takeId: number }) => t.takeId).filter((id: number) => id !== last))
+    expect((await stats()).takes).toBe(statsBefore.takes - 1)
+  })
+})

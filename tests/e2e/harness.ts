@@ -129,3 +129,11 @@ export async function launchBrowser() {
   const { chromium } = await import('playwright-core')
   return chromium.launch({ executablePath: CHROMIUM, args: CHROMIUM_ARGS, headless: true })
 }
+
+/**
+ * Waits until the app has hydrated the page (plugins/ready-mark.client.ts). Text typed before
+ * then is overwritten by the app's own field values, which on a loaded machine loses input.
+ */
+export async function appReady(page: { waitForSelector: (s: string, o?: { state?: 'attached' }) => Promise<unknown> }): Promise<void> {
+  await page.waitForSelector('html[data-app-ready]', { state: 'attached' })
+}

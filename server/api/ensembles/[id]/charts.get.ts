@@ -1,11 +1,11 @@
 import type { ChartSeries } from '../../../../shared/types/charts'
-import { statsRequest } from '../../../utils/stats-scope'
+import { cachedFigures, statsRequest } from '../../../utils/stats-scope'
 import { chartSeries } from '../../../utils/stats-charts'
 
 // GET /api/ensembles/:id/charts?<the stats filters> → the chart series (shared/types/charts.ts)
 // under the same access rules as /stats: players their own, section leaders their section,
-// directors everything.
+// directors everything. Cached like the statistics until the figures' tables change.
 export default defineEventHandler(async (event): Promise<ChartSeries> => {
   const { db, filters, scoring } = await statsRequest(event)
-  return chartSeries(db, filters, scoring)
+  return cachedFigures('charts', db, filters, scoring, () => chartSeries(db, filters, scoring))
 })
