@@ -1,17 +1,14 @@
 // Who may see which figures, and the statistics with a short-lived cache. Players see their own
 // figures, section leaders their section's, directors (and site admins) the whole ensemble.
-import type { H3Event } from 'h3'
 import type { Knex } from 'knex'
-import { requireUser, type Membership } from './auth'
-import { StatsQuery } from '../../shared/schemas/stats'
+import type { Membership } from './auth'
+import type { StatsQuery } from '../../shared/schemas/stats'
+import type { SessionUser } from '../../shared/types/user'
 import type { EnsembleStats } from '../../shared/types/stats'
 import { parseSystem, type SystemOptions } from '../../shared/drill/schema'
 import { StatsBuilder } from '../../shared/stats'
 import { forEachHoldBatch, statsFingerprint, type HoldFilters, type Scoring } from './stats'
 import { membershipFor } from './access'
-import { apiError } from './errors'
-import { useDb } from './db'
-import { IdParams, validateParams, validateQuery } from './validate'
 
 export type Decision<T> = { ok: true, value: T } | { ok: false, status: 400 | 403 | 404, code: string, message: string, details?: Record<string, unknown> }
 
@@ -56,22 +53,18 @@ export function statsScoring (q: StatsQuery): Decision<Scoring> {
 }
 
 /**
- * The common start of the figure routes (/stats, /charts, holds.csv): the signed-in caller, the
- * ensemble (404 when they are not in it), the filters narrowed to their role (403 beyond it) and
- * the scoring asked for (400 for a system with bad options).
+ * The common start of the figure routes (/stats, /charts, holds.csv), after the caller is known:
+ * the ensemble (404 when they are not in it), the filters narrowed to their role (403 beyond it)
+ * and the scoring asked for (400 for a system with bad options). The route throws the refusal.
  */
-export async function statsRequest (event: H3Event): Promise<{ db: Knex, ensembleId: number, filters: HoldFilters, scoring: Scoring }> {
-  const user = await requireUser(event)
-  const { id } = validateParams(event, IdParams)
-  const query = validateQuery(event, StatsQuery)
-  const db = useDb()
-  const membership = await membershipFor(db, user, id)
-  if (!membership) throw apiError(404, 'not_found', 'Ensemble not found')
+export async function statsRequest (db: Knex, user: SessionUser, ensembleId: number, query: StatsQuery): Promise<Decision<{ filters: HoldFilters, scoring: Scoring }>> {
+  const membership = await membershipFor(db, user, ensembleId)
+  if (!membership) return deny(404, 'not_found', 'Ensemble not found')
   const scope = await statsScope(db, membership, query)
-  if (!scope.ok) throw apiError(scope.status, scope.code, scope.message, scope.details)
+  if (!scope.ok) return scope
   const scoring = statsScoring(query)
-  if (!scoring.ok) throw apiError(scoring.status, scoring.code, scoring.message, scoring.details)
-  return { db, ensembleId: id, filters: scope.value, scoring: scoring.value }
+  if (!scoring.ok) return scoring
+  return { ok: true, value: { filters: scope.value, scoring: scoring.value } }
 }
 
 interface CacheEntry { fingerprint: string, at: number, value: Promise<unknown> }
