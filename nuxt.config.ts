@@ -103,6 +103,8 @@ export default defineNuxtConfig({
   },
   nitro: {
     experimental: { tasks: false },
+    // The server runs on Node 20: BigInt literals (exact tuning ratios) need no lowering.
+    esbuild: { options: { target: 'node20' } },
     // Node 20.19 loads packages through their "module-sync" export condition, which the file
     // tracer only follows on Node 22: without it .output lacks e.g. async-function/require.mjs,
     // which the embedded object store (s3rver → koa → get-intrinsic) needs.

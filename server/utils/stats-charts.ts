@@ -1,11 +1,11 @@
-// The chart series beside the ensemble statistics: per-take figures (one player), the hold ×
-// player grid (a section, a player or a drill), sections side by side, participation per
-// assignment, and the filter choices the caller may use. Reads the same hold rows as the
-// statistics (forEachHoldBatch), so a re-scored system, A4 or tolerance applies here too.
+// The chart series beside the ensemble statistics: per-take figures (one player), drift within
+// takes by week, the hold × player grid (a section, a player or a drill), sections side by side,
+// participation per assignment, and the filter choices the caller may use. Reads the same hold
+// rows as the statistics (forEachHoldBatch), so a re-scored system, A4 or tolerance applies here too.
 import type { Knex } from 'knex'
 import type { Membership } from './auth'
 import type { ChartChoices, ChartSeries, ChartTake, GridCell, Participation, SectionFigures } from '../../shared/types/charts'
-import { r2 } from '../../shared/stats'
+import { isoWeekStart, r2 } from '../../shared/stats'
 import { forEachHoldBatch, needsRescore, type HoldFilters, type Scoring } from './stats'
 
 interface Acc { n: number, sum: number, abs: number, within: number }
@@ -95,6 +95,7 @@ export async function chartSeries (db: Knex, f: HoldFilters, s: Scoring): Promis
   const takes = new Map<number, ChartTake & { a: Acc, m: Map<string, Acc> }>()
   const grid = new Map<string, { cell: Omit<GridCell, 'n' | 'meanCents'>, a: Acc }>()
   const sections = new Map<string, { section: string | null, players: Set<number>, takes: Set<number>, a: Acc }>()
+  const weeks = new Map<string, { n: number, sum: number }>()
   const sectionOf = (name: string | null) => {
     const key = name ?? ''
     let v = sections.get(key)
@@ -129,18 +130,24 @@ export async function chartSeries (db: Knex, f: HoldFilters, s: Scoring): Promis
         add(g.a, r.centsFromTarget, r.withinTolerance)
       }
     }
-    if (wantTakes && needsRescore(s)) {
-      // Re-scored rows carry the drift re-fitted under the system asked for.
-      for (const bt of batch) {
-        const t = takes.get(bt.takeId)
-        if (t && bt.driftCentsPerMin != null && Number.isFinite(bt.driftCentsPerMin)) t.driftCentsPerMin = r2(bt.driftCentsPerMin)
-      }
-    } else if (wantTakes && batch.length) {
-      const drift = await db('analyses').where('is_current', 1).whereIn('take_id', batch.map(t => t.takeId)).select('take_id', 'drift_cents_per_min')
-      for (const d of drift) {
-        const t = takes.get(d.take_id)
-        if (t && d.drift_cents_per_min != null && Number.isFinite(d.drift_cents_per_min)) t.driftCentsPerMin = r2(d.drift_cents_per_min)
-      }
+    // Each take's drift: re-fitted on re-scored rows, else as analysed.
+    const drifts = new Map<number, number>()
+    if (needsRescore(s)) {
+      for (const bt of batch) if (bt.driftCentsPerMin != null && Number.isFinite(bt.driftCentsPerMin)) drifts.set(bt.takeId, bt.driftCentsPerMin)
+    } else if (batch.length) {
+      const rows = await db('analyses').where('is_current', 1).whereIn('take_id', batch.map(t => t.takeId)).select('take_id', 'drift_cents_per_min')
+      for (const d of rows) if (d.drift_cents_per_min != null && Number.isFinite(d.drift_cents_per_min)) drifts.set(d.take_id, d.drift_cents_per_min)
+    }
+    for (const bt of batch) {
+      const drift = drifts.get(bt.takeId)
+      if (drift === undefined) continue
+      const t = takes.get(bt.takeId)
+      if (t) t.driftCentsPerMin = r2(drift)
+      const wk = isoWeekStart(bt.submittedAt)
+      let w = weeks.get(wk)
+      if (!w) weeks.set(wk, w = { n: 0, sum: 0 })
+      w.n++
+      w.sum += drift
     }
   })
   const sectionIds = new Map((await db('sections').where({ ensemble_id: f.ensembleId }).select('id', 'name', 'position')).map(r => [r.name as string, { id: r.id as number, position: r.position as number }]))
@@ -158,6 +165,7 @@ export async function chartSeries (db: Knex, f: HoldFilters, s: Scoring): Promis
     .sort((a, b) => a.drillId - b.drillId || a.chordIndex - b.chordIndex || a.part.localeCompare(b.part) || a.userId - b.userId)
   return {
     takes: takeList,
+    weeks: [...weeks.entries()].sort(([a], [b]) => a.localeCompare(b)).map(([weekStart, w]) => ({ weekStart, takes: w.n, driftCentsPerMin: r2(w.sum / w.n) })),
     grid: gridList,
     sections: sectionList,
     participation: await participation(db, f),

@@ -17,7 +17,7 @@ export interface ChartTake {
   meanCents: number | null
   meanAbsCents: number | null
   withinShare: number | null
-  /** Drift over the take in cents per minute as analysed (null: not enough holds to tell). */
+  /** Drift over the take in cents per minute: as analysed, or re-fitted under the scoring asked for (null: not enough holds to tell). */
   driftCentsPerMin: number | null
   /** Mean cents from target per chord member in this take. */
   members: Record<string, number>
@@ -73,8 +73,20 @@ export interface ChartChoices {
   players: Array<{ userId: number, name: string, sectionId: number | null }>
 }
 
+/** The drift within takes, by the ISO week (UTC) they were sent: the mean of the takes' drifts. */
+export interface WeekDrift {
+  /** Monday of the week, YYYY-MM-DD. */
+  weekStart: string
+  /** Takes of the week whose drift could be told (three or more holds measured). */
+  takes: number
+  /** Mean of those takes' drift, cents per minute. */
+  driftCentsPerMin: number
+}
+
 export interface ChartSeries {
   takes: ChartTake[]
+  /** Drift by week over every take in scope. */
+  weeks: WeekDrift[]
   /** Only when the figures are limited to a section, a player or a drill (else empty). */
   grid: GridCell[]
   sections: SectionFigures[]

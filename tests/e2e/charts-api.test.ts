@@ -120,6 +120,28 @@ describe('GET /api/ensembles/:id/charts', () => {
     })
   }
 
+  it('gives the drift within takes by ISO week: the mean of the week’s takes whose drift was told', async () => {
+    // ISO 8601 weeks start on Monday (common practice); the week of a take is that of its sending, in UTC.
+    const mondayOf = (iso: string) => {
+      const d = new Date(iso)
+      d.setUTCHours(0, 0, 0, 0)
+      d.setUTCDate(d.getUTCDate() - ((d.getUTCDay() + 6) % 7))
+      return d.toISOString().slice(0, 10)
+    }
+    const want = new Map<string, number[]>()
+    for (const t of takes) {
+      const drift = t.report.summary.driftCentsPerMin
+      if (drift != null) want.set(mondayOf(t.createdAt), [...(want.get(mondayOf(t.createdAt)) ?? []), drift])
+    }
+    const body = await (await charts('')).json()
+    expect(body.weeks.map((w: { weekStart: string }) => w.weekStart)).toEqual([...want.keys()].sort())
+    for (const w of body.weeks) {
+      const v = want.get(w.weekStart)!
+      expect(w.takes).toBe(v.length)
+      near(w.driftCentsPerMin, mean(v))
+    }
+  })
+
   it('gives a section’s hold × player grid: each player’s mean on each hold over their takes', async () => {
     const s = sections[2]!
     const body = await (await charts(`?sectionId=${s.id}`)).json()

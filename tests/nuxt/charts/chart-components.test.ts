@@ -124,8 +124,17 @@ describe('player charts', () => {
 describe('section and ensemble charts', () => {
   it('labels weeks by their Monday and gives the signed mean beside its colour', async () => {
     // 2 March 2026 is a Monday (ISO 8601 weeks start on Monday; calendar, common practice).
-    const w = await mountSuspended(ChartsWeeks, { props: { weeks: [{ weekStart: '2026-03-02', takes: 4, meanAbsCents: 7.25, meanCents: -6.04 }], tolerance: 5 } })
-    expect(rowsOf(w.get('[data-testid="weeks-table"]'))[0]).toEqual(['2 Mar 2026', '4', '7.3 ¢', `${MINUS}6.0 ¢ flat`])
+    const w = await mountSuspended(ChartsWeeks, {
+      props: {
+        weeks: [{ weekStart: '2026-03-02', takes: 4, meanAbsCents: 7.25, meanCents: -6.04 }, { weekStart: '2026-03-09', takes: 1, meanAbsCents: 2, meanCents: 2 }],
+        drift: [{ weekStart: '2026-03-02', takes: 3, driftCentsPerMin: -1.24 }],
+        tolerance: 5,
+      },
+    })
+    const rows = rowsOf(w.get('[data-testid="weeks-table"]'))
+    // The week's drift within takes beside its figures; a week with no take long enough to tell says so.
+    expect(rows[0]).toEqual(['2 Mar 2026', '4', '7.3 ¢', `${MINUS}6.0 ¢ flat`, `${MINUS}1.2 ¢/min over 3 takes`])
+    expect(rows[1]![4]).toBe('not enough holds')
   })
 
   it('sets sections side by side and leaves out sections with no scored hold', async () => {
