@@ -3,6 +3,9 @@
 import { z } from 'zod'
 import { A4_MAX, A4_MIN, SYSTEM_NAMES } from '../drill/schema'
 
+/** Longest Scala text a filter takes (characters; percent-encoded it may triple). */
+export const SCALA_FILTER_MAX = 4_000
+
 const Id = z.string().regex(/^[1-9]\d{0,15}$/, 'a positive whole number').transform(Number)
 /** A date (YYYY-MM-DD, UTC) or an ISO 8601 instant. */
 const When = z.string().refine(v => /^\d{4}-\d{2}-\d{2}(T[\d:.]+(Z|[+-]\d{2}:\d{2})?)?$/.test(v) && Number.isFinite(Date.parse(v)), 'a date such as 2026-03-01')
@@ -21,7 +24,8 @@ export const StatsQuery = z.strictObject({
   start: z.string().min(1).max(4).optional(),
   wolf: z.string().min(1).max(4).optional(),
   fraction: z.string().min(1).max(12).optional(),
-  scala: z.string().min(1).max(20_000, 'too long for a filter (20,000 characters at most)').optional(),
+  // The scale travels in the address: kept well under the server's 16 KB limit on request headers.
+  scala: z.string().min(1).max(SCALA_FILTER_MAX, 'too long for a filter (4,000 characters at most, comments left out)').optional(),
   a4: Num(A4_MIN, A4_MAX).optional(),
   tolerance: Num(0.01, 50).optional(),
 }).superRefine((q, ctx) => {

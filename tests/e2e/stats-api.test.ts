@@ -196,7 +196,7 @@ describe('GET /api/ensembles/:id/stats', () => {
   })
 
   it('refuses bad filters with a message naming the field', async () => {
-    for (const [q, field] of [['?colour=blue', ''], ['?from=2026-05-01&to=2026-04-01', 'to'], ['?system=scala', 'scala'], ['?seventh=harmonic', 'seventh'], ['?a4=500', 'a4'], ['?sectionId=1e1', 'sectionId']] as const) {
+    for (const [q, field] of [['?colour=blue', ''], ['?from=2026-05-01&to=2026-04-01', 'to'], ['?system=scala', 'scala'], [`?system=scala&scala=${encodeURIComponent('not a scale\nat all\n')}`, 'scala'], [`?system=scala&scala=${'1'.repeat(4_001)}`, 'scala'], ['?seventh=harmonic', 'seventh'], ['?a4=500', 'a4'], ['?sectionId=1e1', 'sectionId']] as const) {
       const r = await stats(q)
       expect(r.status, q).toBe(400)
       const text = await r.text()
