@@ -14,6 +14,7 @@ import * as m009 from '../../migrations/009_assignment_assignees'
 import * as m010 from '../../migrations/010_review_notes'
 import * as m011 from '../../migrations/011_member_reading_default'
 import * as m012 from '../../migrations/012_figure_indexes'
+import * as m013 from '../../migrations/013_assignment_changes'
 
 interface Migration { up: (knex: Knex) => Promise<void>, down: (knex: Knex) => Promise<void>, config?: { transaction?: boolean } }
 
@@ -30,6 +31,7 @@ export const MIGRATIONS: Record<string, Migration> = {
   '010_review_notes.ts': m010,
   '011_member_reading_default.ts': m011,
   '012_figure_indexes.ts': m012,
+  '013_assignment_changes.ts': m013,
 }
 
 /** Knex migration source over MIGRATIONS (pass as `migrationSource` to migrate.latest()). */

@@ -54,6 +54,23 @@ export function assignmentNoticeMail (r: MailRow, baseUrl: string): OutgoingMail
   return { to: r.email, subject: `New assignment: ${r.drill} (${r.part ?? 'your part'}), due ${dueWords(r.dueAt)}`, text }
 }
 
+/** The message after an edit: the assignment as it now stands. */
+export function assignmentChangedMail (r: MailRow, baseUrl: string): OutgoingMail {
+  const text = [
+    `Hello ${r.name},`,
+    '',
+    `${r.ensemble} has changed your assignment${r.title ? ` "${r.title}"` : ''}. This is how it stands now:`,
+    `Drill: ${r.drill}`,
+    `Your part: ${r.part ?? 'the part of your section'}`,
+    `Due: ${dueWords(r.dueAt)}`,
+    ...(r.attempts ? [`Takes allowed: ${r.attempts}`] : []),
+    ...(r.instructions ? ['', r.instructions] : []),
+    '',
+    `Record or upload your take here: ${recordLink(baseUrl, r)}`,
+  ].join('\n')
+  return { to: r.email, subject: `Changed: ${r.drill} (${r.part ?? 'your part'}), now due ${dueWords(r.dueAt)}`, text }
+}
+
 /** The reminder one day before the due date. */
 export function assignmentReminderMail (r: MailRow, baseUrl: string): OutgoingMail {
   const text = [
@@ -97,12 +114,34 @@ async function sendClaimed (db: Knex, r: MailRow, column: 'notified_at' | 'remin
   }
 }
 
-/** Mails the notice to every assignee of the assignment not yet notified; returns how many were sent. */
+/**
+ * Mails the notice to every assignee of the assignment not yet notified, and the change message to
+ * those told before whose assignment changed since; returns how many were sent.
+ */
 export async function sendAssignmentNotices (db: Knex, assignmentId: number, send: Send, baseUrl: string, now = new Date()): Promise<number> {
+  const at = now.toISOString()
   const rows = await mailRows(db).where('a.id', assignmentId).whereNull('aa.notified_at').whereNull('a.archived_at') as (MailRow & Record<string, any>)[]
   let sent = 0
-  for (const r of rows) if (await sendClaimed(db, r, 'notified_at', assignmentNoticeMail(r, baseUrl), send, now.toISOString())) sent++
+  for (const r of rows) if (await sendClaimed(db, r, 'notified_at', assignmentNoticeMail(r, baseUrl), send, at)) sent++
+  const changed = await mailRows(db).where('a.id', assignmentId).whereNotNull('aa.notified_at').whereNotNull('aa.changed_at').whereNull('a.archived_at')
+    .where(q => q.whereNull('aa.changed_notified_at').orWhereRaw('aa.changed_notified_at < aa.changed_at')) as (MailRow & Record<string, any>)[]
+  for (const r of changed) if (await sendChangeClaimed(db, r, assignmentChangedMail(r, baseUrl), send, at)) sent++
   return sent
+}
+
+/** Like sendClaimed, for the change message: claimed while the change is newer than the last one mailed. */
+async function sendChangeClaimed (db: Knex, r: MailRow, mail: OutgoingMail, send: Send, at: string): Promise<boolean> {
+  const claimed = await db('assignment_assignees').where({ id: r.assigneeId }).whereNotNull('changed_at')
+    .where(q => q.whereNull('changed_notified_at').orWhereRaw('changed_notified_at < changed_at'))
+    .update({ changed_notified_at: at })
+  if (claimed !== 1) return false
+  try {
+    await send(mail)
+    return true
+  } catch (err) {
+    await db('assignment_assignees').where({ id: r.assigneeId, changed_notified_at: at }).update({ changed_notified_at: null })
+    throw err
+  }
 }
 
 /** Mails every reminder due now (see reminderDue); returns how many were sent. */

@@ -146,7 +146,8 @@ async function storedTargets (db: Knex, assignmentId: number): Promise<Targets> 
 
 /**
  * Edits an assignment. New targets replace the old: people newly reached get the notice, people
- * no longer reached drop out (their takes stay), the others keep what was mailed to them. A due
+ * no longer reached drop out (their takes stay), and those already told get one message when
+ * what they were told changes (due date, instructions, takes allowed, title, their part). A due
  * date moved later clears the reminders, so the new date gets its own.
  */
 export async function updateAssignment (db: Knex, ensembleId: number, assignmentId: number, actorId: number, patch: AssignmentPatch, now = new Date()): Promise<{ ok: true, assignees: number } | AssignmentRefusal> {
@@ -165,6 +166,7 @@ export async function updateAssignment (db: Knex, ensembleId: number, assignment
     if (patch.dueAt !== undefined) changes.due_at = patch.dueAt
     if (archived !== undefined) changes.archived_at = archived ? (a.archived_at ?? at) : null
     let newcomers = 0
+    const partChanged: number[] = []
     if (patch.sectionIds || patch.userIds || patch.sectionParts || patch.userParts) {
       const old = await storedTargets(trx, assignmentId)
       const sectionIds = patch.sectionIds ?? old.sectionIds
@@ -182,18 +184,32 @@ export async function updateAssignment (db: Knex, ensembleId: number, assignment
       const keep = r.assignees.map(x => x.userId)
       await trx('assignment_assignees').where({ assignment_id: assignmentId }).whereNotIn('user_id', keep).delete()
       for (const x of r.assignees) {
-        const n = await trx('assignment_assignees').where({ assignment_id: assignmentId, user_id: x.userId }).update({ section_id: x.sectionId, part: x.part })
-        if (!n) {
+        const was = await trx('assignment_assignees').where({ assignment_id: assignmentId, user_id: x.userId }).first('id', 'part', 'notified_at')
+        if (was) {
+          await trx('assignment_assignees').where({ id: was.id }).update({ section_id: x.sectionId, part: x.part })
+          if (was.part !== x.part && was.notified_at) partChanged.push(was.id)
+        } else {
           await trx('assignment_assignees').insert({ assignment_id: assignmentId, user_id: x.userId, section_id: x.sectionId, part: x.part, created_at: at })
           newcomers++
         }
       }
     }
+    // Those already told about the assignment hear of a change to what they were told, once.
+    const told = (changes.due_at !== undefined && changes.due_at !== a.due_at)
+      || (changes.instructions !== undefined && changes.instructions !== a.instructions)
+      || (changes.attempts !== undefined && changes.attempts !== a.attempts)
+      || (changes.title !== undefined && changes.title !== a.title)
+    const changedFor = told
+      ? (await trx('assignment_assignees').where({ assignment_id: assignmentId }).whereNotNull('notified_at').select('id')).map((r: { id: number }) => r.id)
+      : partChanged
+    if (changedFor.length && !a.archived_at && archived !== true) {
+      await trx('assignment_assignees').whereIn('id', changedFor).update({ changed_at: at })
+    }
     if (patch.dueAt !== undefined && a.due_at && patch.dueAt > a.due_at) {
       await trx('assignment_assignees').where({ assignment_id: assignmentId }).update({ reminded_at: null })
     }
     if (Object.keys(changes).length) await trx('assignments').where({ id: assignmentId }).update({ ...changes, updated_at: at })
-    if (newcomers) await enqueueJob(trx, ASSIGNMENT_NOTICE_JOB, { assignmentId }, { maxAttempts: 5 })
+    if (newcomers || changedFor.length) await enqueueJob(trx, ASSIGNMENT_NOTICE_JOB, { assignmentId }, { maxAttempts: 5 })
     const camel = (k: string) => k.replace(/_([a-z])/g, (_, c: string) => c.toUpperCase())
     const before = Object.fromEntries(Object.keys(changes).map(k => [camel(k), a[k] ?? null]))
     const after = Object.fromEntries(Object.entries(changes).map(([k, v]) => [camel(k), v]))

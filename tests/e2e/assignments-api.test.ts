@@ -180,6 +180,19 @@ describe('the director\'s views', () => {
     expect(edit.status).toBe(200)
     expect(edit.body.instructions).toBe('Hold each note for four beats.')
     expect((await json(c.director, 'PATCH', `/api/ensembles/${ids.choir}/assignments/${altos}`, { dueAt: inHours(-3) })).status).toBe(400)
+    // Those already told hear of the change once, with the assignment as it now stands.
+    const changed = async () => (await mails()).filter(m => m.subject.startsWith('Changed: Assigned triad'))
+    await until('three change messages', async () => (await changed()).length >= 3)
+    for (const email of ALTOS) expect(to(await changed(), email), email).toHaveLength(1)
+    const message = await (await app.fetch(`/api/dev/mail/${(await changed())[0]!.id}`, { cookie: c.admin })).json() as Json
+    expect(JSON.stringify(message)).toContain('Hold each note for four beats.')
+    // Saving the same text again changes nothing and mails nobody; a later due date mails once more.
+    expect((await json(c.director, 'PATCH', `/api/ensembles/${ids.choir}/assignments/${altos}`, { instructions: 'Hold each note for four beats.' })).status).toBe(200)
+    expect((await json(c.director, 'PATCH', `/api/ensembles/${ids.choir}/assignments/${altos}`, { dueAt: inHours(96) })).status).toBe(200)
+    await until('three more change messages', async () => (await changed()).length >= 6)
+    await sleep(1000) // a few more runs of the mail job: nothing goes twice
+    expect(await changed()).toHaveLength(6)
+    for (const email of ALTOS) expect(to(await changed(), email), email).toHaveLength(2)
     const spare = (await read(await create(valid({ sectionIds: [ids.tenor] })))).body.id
     expect((await json(c.director, 'PATCH', `/api/ensembles/${ids.choir}/assignments/${spare}`, { archived: true })).status).toBe(200)
     expect((await read(await app.fetch('/api/assignments', { cookie: c.daniel }))).body.some((a: Json) => a.id === spare)).toBe(false)
