@@ -28,6 +28,15 @@
 // - Confidence (0–1) = usable share (steady length against half the chord, full from 50 %)
 //   × harmonicity ((h − 0.5)/0.4, clamped) × 1/(1 + (spread/15 ¢)²) (one voice only: beats are
 //   not unsteadiness) × 1/(1 + (SE/1 ¢)²) × length (full from 0.4 s) × 0.9 when clipping was seen.
+// - A part inside a sounding chord (a quartet recorded together, the take measuring one part):
+//   when the free pitch search places fewer than 60 % of the holds, each expected note's own
+//   harmonic series is searched for (pitch.ts chordTracks, ±100 ¢ of the note) and kept when it
+//   places clearly more. The holds are then refined with long frames (16 periods), no octave
+//   guard and no voice spread (other parts' partials); the centre is the power-weighted median of
+//   the harmonics' own centres (voices.ts harmonicMedian: a harmonic another part sounds on is
+//   pulled aside, the median follows the clear ones) and their disagreement is its SE; the
+//   confidence is at most 0.6 (a partial of another part on the same harmonic cannot always be
+//   told apart), and the take warns 'whole_chord'.
 // - Clipping: more than 5 % of the sounding samples at full scale is an error ('clipped': the
 //   recording level was far too high); 0.1–5 % is a warning and lowers confidence slightly.
 // - Digital silence (peak below −80 dBFS) or no pitched frame anywhere → 'silent'; sound but
@@ -39,10 +48,10 @@ import { Pyramid, median, quantile } from './dsp'
 import { alignHolds, boundaryFrames } from './align'
 import { findOnsets, fitTimeMap, holdTiming } from './timing'
 import type { TimeMap } from './timing'
-import { coarseTrack, noteBands, octaveEvidence, refinePitch } from './pitch'
+import { chordTracks, coarseTrack, noteBands, octaveEvidence, refinePitch } from './pitch'
 import type { CoarseTrack, RefinedTrack } from './pitch'
 import { ENGINE_VERSION, WRONG_NOTE_CENTS } from './types'
-import { harmonicCentroid, voiceSpread } from './voices'
+import { harmonicCentroid, harmonicMedian, voiceSpread } from './voices'
 
 export { WRONG_NOTE_CENTS }
 import type { ExpectedHold, HoldReasonCode, MeasuredHold, Measurement, MeasurementWarning } from './types'
@@ -61,6 +70,10 @@ const MIN_STEADY_S = 0.15
 const BIN_S = 0.005
 /** Spread between voices (cents, RMS about the moving centre) above which a hold is taken for several voices. */
 const SEVERAL_VOICES_CENTS = 8
+/** Highest confidence of a hold picked out of a sounding chord (below the 0.8 of a sure hold). */
+const CHORD_CONFIDENCE_MAX = 0.6
+/** Share of the holds below which the free pitch search is taken to follow another part of a sounding chord. */
+const CHORD_TRY_SHARE = 0.6
 
 const log2c = (x: number) => 1200 * Math.log2(x)
 
@@ -86,8 +99,9 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
   const pyr = new Pyramid(x, sr)
   // One coarse track per band of expected notes (a part spanning two octaves gets two).
   const bands = noteBands(notes.map(h => h.expectedHz))
-  const bandTracks = bands.map(b => coarseTrack(pyr, b))
-  const trackOf = notes.map(h => bandTracks[bands.findIndex(b => h.expectedHz >= b.minHz && h.expectedHz <= b.maxHz)]!)
+  let bandTracks = bands.map(b => coarseTrack(pyr, b))
+  const bandOf = notes.map(h => bands.findIndex(b => h.expectedHz >= b.minHz && h.expectedHz <= b.maxHz))
+  let trackOf = bandOf.map(k => bandTracks[k]!)
   progress(0.3)
   let voicedFrames = 0
   {
@@ -111,12 +125,32 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
   // Time map: a first alignment from the pitch track alone, then the map refitted to the onsets
   // it found (robust to missing and extra chords) and the holds placed again under that map.
   const boundCache = new Map<CoarseTrack, Uint8Array>()
-  const bounds = trackOf.map((t) => {
+  const boundsOf = () => trackOf.map((t) => {
     if (!boundCache.has(t)) boundCache.set(t, boundaryFrames(t))
     return boundCache.get(t)!
   })
   const onsetPairs = (f: ReturnType<typeof findOnsets>) => f.flatMap((o, i) => (o.onsetS === null ? [] : [{ drillS: notes[i]!.startS, takeS: o.onsetS }]))
   let alignment = alignHolds(trackOf, notes)
+  // A part inside a sounding chord (the take holds the whole chord): the free pitch search follows
+  // another part (usually the bass) and finds few holds. When it finds fewer than CHORD_TRY_SHARE of
+  // them, the part's own harmonic series is searched for instead, and kept if it finds clearly more.
+  let inChord = false
+  {
+    const foundCount = (a: typeof alignment) => a.placements.filter(p => p.found).length
+    const plain = foundCount(alignment)
+    if (plain < CHORD_TRY_SHARE * notes.length) {
+      const perBand = bands.map(b => chordTracks(pyr, b, notes.map(h => h.expectedHz)))
+      const chordOf = notes.map((h, i) => perBand[bandOf[i]!]!.get(h.expectedHz)!)
+      const a2 = alignHolds(chordOf, notes)
+      if (foundCount(a2) >= Math.max(plain + 2, 1.5 * plain)) {
+        inChord = true
+        bandTracks = perBand.flatMap(m => [...m.values()])
+        trackOf = chordOf
+        alignment = a2
+      }
+    }
+  }
+  const bounds = boundsOf()
   let found = findOnsets(trackOf, alignment.placements, notes, bounds)
   let map: TimeMap = { offsetS: alignment.offsetS, timeScale: alignment.timeScale }
   const refit = fitTimeMap(onsetPairs(found))
@@ -149,7 +183,7 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
     if (!p.found) {
       m = missing(pyr, h, p.startS, p.endS, trackOf[i]!, used, durationS, expectedDur, clipWarn, opts.trace !== false)
     } else {
-      m = measureHold(pyr, trackOf[i]!, h, p.startS, p.endS, expectedDur, clipWarn, opts.trace !== false)
+      m = measureHold(pyr, trackOf[i]!, h, p.startS, p.endS, expectedDur, clipWarn, opts.trace !== false, inChord)
       m.timing = holdTiming(found[i]!, h, map)
     }
     holds.push(m)
@@ -160,6 +194,7 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
   if (holds.every(hh => hh.detectedHz === null && (hh.reasonCode === 'no_pitch' || hh.reasonCode === 'beyond_take' || hh.reasonCode === 'too_short'))) {
     throw new AnalysisError('no_holds', { reasons: holds.map(hh => hh.reasonCode) })
   }
+  if (inChord) warnings.push({ code: 'whole_chord', message: 'The take holds the whole chord: this part was picked out by its own harmonics, so its holds are less certain than a take of the part alone' })
   const notFound = holds.filter(hh => hh.detectedHz === null).length
   if (notFound > 0) warnings.push({ code: 'holds_missing', message: `${notFound} of ${holds.length} holds could not be measured` })
   return {
@@ -486,7 +521,7 @@ function vibratoGain (nu: number, tr: RefinedTrack): number {
 }
 
 function measureHold (pyr: Pyramid, track: CoarseTrack, h: ExpectedHold, startS: number, endS: number,
-  expectedDur: number, clipWarn: boolean, withTrace: boolean): MeasuredHold {
+  expectedDur: number, clipWarn: boolean, withTrace: boolean, inChord = false): MeasuredHold {
   // Octave the detector heard: majority over the run's voiced frames.
   const a = Math.max(0, Math.floor(startS / track.hopS))
   const b = Math.min(track.times.length, Math.ceil(endS / track.hopS))
@@ -508,11 +543,12 @@ function measureHold (pyr: Pyramid, track: CoarseTrack, h: ExpectedHold, startS:
   const guessCents = median(rests)
   const guessHz = h.expectedHz * Math.pow(2, guessCents / 1200)
 
-  const tr = refinePitch(pyr, startS, endS, guessHz)
+  const tr = refinePitch(pyr, startS, endS, guessHz, { chord: inChord })
   // Octave guard, on the refined pitch (the coarse one can be tens of cents off when the
   // detector heard another octave): when the detector heard another octave, could not reach the
-  // one below, or the odd harmonics are missing, long-window harmonic evidence decides.
-  {
+  // one below, or the odd harmonics are missing, long-window harmonic evidence decides. Not in a
+  // chord: the other parts sound at the octaves and half-way points it probes.
+  if (!inChord) {
     let odd = 0
     let even = 0
     for (let k = 0; k < tr.harmonics; k++) { if (k % 2 === 0) odd += tr.harmonicPower[k]!; else even += tr.harmonicPower[k]! }
@@ -533,14 +569,14 @@ function measureHold (pyr: Pyramid, track: CoarseTrack, h: ExpectedHold, startS:
       }
     }
   }
-  const m = measureSteady(tr, h, startS, endS, expectedDur, clipWarn, withTrace)
+  const m = measureSteady(tr, h, startS, endS, expectedDur, clipWarn, withTrace, inChord)
   if (m.detectedHz !== null && Math.abs(centsFromExpected(m)!) > WRONG_NOTE_CENTS) return asWrongNote(m, h)
   return m
 }
 
 // The steady part of a refined track: plateau, trims, robust centre, spread, vibrato, confidence.
 function measureSteady (tr: RefinedTrack, h: ExpectedHold, startS: number, endS: number,
-  expectedDur: number, clipWarn: boolean, withTrace: boolean): MeasuredHold {
+  expectedDur: number, clipWarn: boolean, withTrace: boolean, inChord = false): MeasuredHold {
   const bins = binTrack(tr, h.expectedHz, startS, endS)
   const n = bins.c.length
   // Main plateau: the longest run (gaps ≤ 60 ms) within 100 ¢ of the run's median.
@@ -712,8 +748,14 @@ function measureSteady (tr: RefinedTrack, h: ExpectedHold, startS: number, endS:
   let seOut = se
   let steadiness = 1 / (1 + (spread / 15) ** 2)
   let voiceSpreadCents: number | null = null
-  const vs = voiceSpread(tr, steadyStartS, steadyEndS)
+  // In a chord the other parts' partials beat with the part's harmonics: no voices are told apart.
+  const vs = inChord ? null : voiceSpread(tr, steadyStartS, steadyEndS)
   const cc = vs && vs.cents >= SEVERAL_VOICES_CENTS ? harmonicCentroid(tr, h.expectedHz, steadyStartS, steadyEndS) : null
+  const hm = inChord ? harmonicMedian(tr, h.expectedHz, steadyStartS, steadyEndS) : null
+  if (hm) {
+    centreOut = hm.centreCents
+    seOut = Math.max(se, hm.seCents)
+  }
   if (vs && cc) {
     centreOut = cc.centreCents
     seOut = cc.seCents
@@ -727,6 +769,10 @@ function measureSteady (tr: RefinedTrack, h: ExpectedHold, startS: number, endS:
     (1 / (1 + seOut * seOut)) *
     Math.min(1, steadyS / 0.4) *
     (clipWarn ? 0.9 : 1)
+  // A part picked out of a chord: where another part's partial sounds on the same harmonics (an
+  // octave or a fifth in the chord) the two cannot be told apart and the centre can move by a few
+  // cents unseen, so such a hold is never reported as sure.
+  const confOut = inChord ? Math.min(CHORD_CONFIDENCE_MAX, conf) : conf
   const detectedHz = h.expectedHz * Math.pow(2, centreOut / 1200)
   const out: MeasuredHold = {
     index: h.index,
@@ -735,7 +781,7 @@ function measureSteady (tr: RefinedTrack, h: ExpectedHold, startS: number, endS:
     detectedHz: round(detectedHz, 5),
     spreadCents: round(spread, 2),
     slopeCentsPerS: round(fit.slope, 2),
-    confidence: round(Math.max(0, Math.min(1, conf)), 2),
+    confidence: round(Math.max(0, Math.min(1, confOut)), 2),
     vibrato,
     reason: null,
     reasonCode: null,

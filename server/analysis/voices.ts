@@ -173,3 +173,42 @@ export function voiceSpread (tr: RefinedTrack, startS: number, endS: number): Vo
   for (const v of vals) { acc += v.w; if (acc >= half) { med = v.c; break } }
   return { cents: med, perHarmonic: per }
 }
+
+/**
+ * Centre of a part picked out of a sounding chord over [startS, endS]: each harmonic's mean f0
+ * (cents from refHz), then their power-weighted median. Another part's partial on one of the
+ * part's harmonics (an octave, a fifth or a third in the chord) pulls that harmonic towards its
+ * own pitch; the median follows the harmonics that are clear of the other parts, and the
+ * harmonics' disagreement (1.4826 × weighted MAD / √n) is the standard error. Null when fewer
+ * than three harmonics carry 8 intervals each.
+ */
+export function harmonicMedian (tr: RefinedTrack, refHz: number, startS: number, endS: number): CentroidCentre | null {
+  const n = tr.partials.times.length
+  const ms = intervals(tr, startS, endS)
+  const { f0, power } = tr.partials
+  const perK: Array<{ c: number, w: number }> = []
+  for (let k = 0; k < tr.harmonics; k++) {
+    let s = 0
+    let p = 0
+    let cnt = 0
+    for (const m of ms) {
+      const f = f0[k * n + m]!
+      if (!(f > 0)) continue
+      s += log2c(f / refHz)
+      p += power[k * n + m]!
+      cnt++
+    }
+    if (cnt >= 8 && p > 0) perK.push({ c: s / cnt, w: p / cnt })
+  }
+  if (perK.length < 3) return null
+  const wMedian = (v: Array<{ c: number, w: number }>) => {
+    const a = [...v].sort((p, q) => p.c - q.c)
+    const half = a.reduce((s, x) => s + x.w, 0) / 2
+    let acc = 0
+    for (const x of a) { acc += x.w; if (acc >= half) return x.c }
+    return a[a.length - 1]!.c
+  }
+  const centre = wMedian(perK)
+  const mad = wMedian(perK.map(p => ({ c: Math.abs(p.c - centre), w: p.w })))
+  return { centreCents: centre, seCents: Math.max(0.05, 1.4826 * mad / Math.sqrt(perK.length)), harmonics: perK.length }
+}
