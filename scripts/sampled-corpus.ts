@@ -488,8 +488,8 @@ export function missingTool (): string | null {
 const root = join(dirname(fileURLToPath(import.meta.url)), '..')
 
 /** The small takes the unit tests read (16 kHz, mono 16-bit WAV, 300–500 kB each): a trumpet line with a wrong note
- *  and a tied repeat, a sung line (voice oohs) with vibrato and a note an octave low, a five-voice section on one
- *  part, and a brass quartet sounding together with one part measured. */
+ *  and a tied repeat, a sung line (voice oohs) with vibrato and a note an octave low, a low sung line with vibrato (one
+ *  singer), a five-voice section on one part, and a brass quartet sounding together with one part measured. */
 export function fixtureSpecs (): TakeSpec[] {
   const beats = [2, 2, 2, 2, 2, 2]
   return [
@@ -520,6 +520,12 @@ export function fixtureSpecs (): TakeSpec[] {
       }],
       offsets: [5, -9, 3, 11, -4], driftCentsPerMin: 0, leadInS: 0.9, lateS: [0.03, 0, 0.05, 0.02, 0.04],
       repeats: 'rearticulate', gapS: 0.1, rate: 16000,
+    },
+    {
+      id: 'oohs-bass-vibrato', kind: 'voice', label: 'Voice oohs (53), one singer, low line with vibrato ±15 ¢ at 5 Hz',
+      tempo: 72, beats, part: 'P', parts: [{ name: 'P', notes: [48, 53, 55, 48, 45, 48], voices: [{ program: 53, detuneCents: 0, vibrato: { rateHz: 5.0, extentCents: 15, phase: 2.0 } }] }],
+      offsets: [4, -7, 10, -2, 6, -9], driftCentsPerMin: 0, leadInS: 0.7, lateS: [0.01, 0.04, 0, 0.02, 0.05, 0.03],
+      repeats: 'rearticulate', gapS: 0.12, rate: 16000,
     },
     {
       id: 'quartet-horn', kind: 'chord', label: 'Brass quartet (trumpet 56, horn 60, trombone 57, tuba 58) all sounding; the horn part measured',

@@ -21,7 +21,8 @@
 //   vibrato is found, a sinusoid at its rate, over a whole number of vibrato cycles; the
 //   constant at the window centre is the hold centre (= mean log-frequency of the steady part).
 // - Several voices (a section recorded together): when the harmonics' spread about their moving
-//   centre is 8 ¢ or more (one voice shows a few cents at most), the centre is the harmonics'
+//   centre is 8 ¢ or more (one voice shows a few cents at most) and the pitch track wanders by
+//   2.6 ¢ or more once vibrato is removed (the beats hand it from voice to voice), the centre is the harmonics'
 //   power-weighted frequency over the steady part (voices.ts), which beats do not scramble, its
 //   SE comes from four block centres and the harmonics' disagreement, and the hold reports the
 //   voices' spread (voiceSpreadCents). One voice: voiceSpreadCents null.
@@ -70,6 +71,11 @@ const MIN_STEADY_S = 0.15
 const BIN_S = 0.005
 /** Spread between voices (cents, RMS about the moving centre) above which a hold is taken for several voices. */
 const SEVERAL_VOICES_CENTS = 8
+/** …and slow wander of the phase track (its spread, vibrato removed) of at least this much: voices
+ *  beating hand the track from one to another, one voice does not wander so (calibrated on the
+ *  sampled corpus: one voice or instrument at most 2.4 ¢ where the spread between voices passes
+ *  8 ¢, a section at least 2.8 ¢). */
+const SEVERAL_VOICES_WANDER_CENTS = 2.6
 /** Highest confidence of a hold picked out of a sounding chord (below the 0.8 of a sure hold). */
 const CHORD_CONFIDENCE_MAX = 0.6
 /** Share of the holds below which the free pitch search is taken to follow another part of a sounding chord. */
@@ -750,7 +756,7 @@ function measureSteady (tr: RefinedTrack, h: ExpectedHold, startS: number, endS:
   let voiceSpreadCents: number | null = null
   // In a chord the other parts' partials beat with the part's harmonics: no voices are told apart.
   const vs = inChord ? null : voiceSpread(tr, steadyStartS, steadyEndS)
-  const cc = vs && vs.cents >= SEVERAL_VOICES_CENTS ? harmonicCentroid(tr, h.expectedHz, steadyStartS, steadyEndS) : null
+  const cc = vs && vs.cents >= SEVERAL_VOICES_CENTS && spread >= SEVERAL_VOICES_WANDER_CENTS ? harmonicCentroid(tr, h.expectedHz, steadyStartS, steadyEndS) : null
   const hm = inChord ? harmonicMedian(tr, h.expectedHz, steadyStartS, steadyEndS) : null
   if (hm) {
     centreOut = hm.centreCents
