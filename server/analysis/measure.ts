@@ -26,6 +26,9 @@
 //   power-weighted frequency over the steady part (voices.ts), which beats do not scramble, its
 //   SE comes from four block centres and the harmonics' disagreement, and the hold reports the
 //   voices' spread (voiceSpreadCents). One voice: voiceSpreadCents null.
+// - SE of the centre: the larger of the four-block SE above and the harmonics' disagreement
+//   (1.4826 × weighted MAD of each harmonic's own centre / √n, voices.ts harmonicMedian): a tone
+//   whose partials are not quite harmonic has a pitch that depends on the harmonics heard.
 // - Confidence (0–1) = usable share (steady length against half the chord, full from 50 %)
 //   × harmonicity ((h − 0.5)/0.4, clamped) × 1/(1 + (spread/15 ¢)²) (one voice only: beats are
 //   not unsteadiness) × 1/(1 + (SE/1 ¢)²) × length (full from 0.4 s) × 0.9 when clipping was seen.
@@ -757,11 +760,12 @@ function measureSteady (tr: RefinedTrack, h: ExpectedHold, startS: number, endS:
   // In a chord the other parts' partials beat with the part's harmonics: no voices are told apart.
   const vs = inChord ? null : voiceSpread(tr, steadyStartS, steadyEndS)
   const cc = vs && vs.cents >= SEVERAL_VOICES_CENTS && spread >= SEVERAL_VOICES_WANDER_CENTS ? harmonicCentroid(tr, h.expectedHz, steadyStartS, steadyEndS) : null
-  const hm = inChord ? harmonicMedian(tr, h.expectedHz, steadyStartS, steadyEndS) : null
-  if (hm) {
-    centreOut = hm.centreCents
-    seOut = Math.max(se, hm.seCents)
-  }
+  // The harmonics' own centres: in a chord their weighted median is the centre; alone, their
+  // disagreement (a sampled or real tone whose partials are not quite harmonic: its pitch depends
+  // on which harmonics one listens to) bounds how well the centre is known.
+  const hm = harmonicMedian(tr, h.expectedHz, steadyStartS, steadyEndS)
+  if (hm && inChord) centreOut = hm.centreCents
+  if (hm) seOut = Math.max(se, hm.seCents)
   if (vs && cc) {
     centreOut = cc.centreCents
     seOut = cc.seCents
