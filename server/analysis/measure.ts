@@ -27,16 +27,18 @@
 //   SE comes from four block centres and the harmonics' disagreement, and the hold reports the
 //   voices' spread (voiceSpreadCents). One voice: voiceSpreadCents null.
 // - SE of the centre: the larger of the four-block SE above and the harmonics' disagreement
-//   (1.4826 × weighted MAD of each harmonic's own centre / √n, voices.ts harmonicMedian): a tone
+//   (1.4826 × MAD of each harmonic's own centre / √n, voices.ts harmonicMedian): a tone
 //   whose partials are not quite harmonic has a pitch that depends on the harmonics heard.
 // - Confidence (0–1) = usable share (steady length against half the chord, full from 50 %)
 //   × harmonicity ((h − 0.5)/0.4, clamped) × 1/(1 + (spread/15 ¢)²) (one voice only: beats are
 //   not unsteadiness) × 1/(1 + (SE/1 ¢)²) × length (full from 0.4 s) × 0.9 when clipping was seen.
 // - A part inside a sounding chord (a quartet recorded together, the take measuring one part):
-//   when the free pitch search places fewer than 60 % of the holds, each expected note's own
-//   harmonic series is searched for (pitch.ts chordTracks, ±100 ¢ of the note) and kept when it
-//   places clearly more. The holds are then refined with long frames (16 periods), no octave
-//   guard and no voice spread (other parts' partials); the centre is the power-weighted median of
+//   when the free pitch search measures fewer than 60 % of the holds, each expected note's own
+//   harmonic series is searched for (pitch.ts chordTracks, ±100 ¢ of the note) and that pass is
+//   kept only when it measures clearly more holds than the free pass measured or heard as wrong
+//   notes (a take of a wrong key or piece stays wrong notes; noise stays no_holds). The holds are then refined with long frames (16 periods), no octave
+//   guard and no voice spread (other parts' partials); a hold whose fundamental or octave is not
+//   heard is not this part's note (no_pitch); the centre is the median of
 //   the harmonics' own centres (voices.ts harmonicMedian: a harmonic another part sounds on is
 //   pulled aside, the median follows the clear ones) and their disagreement is its SE; the
 //   confidence is at most 0.6 (a partial of another part on the same harmonic cannot always be
@@ -108,9 +110,8 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
   const pyr = new Pyramid(x, sr)
   // One coarse track per band of expected notes (a part spanning two octaves gets two).
   const bands = noteBands(notes.map(h => h.expectedHz))
-  let bandTracks = bands.map(b => coarseTrack(pyr, b))
+  const bandTracks = bands.map(b => coarseTrack(pyr, b))
   const bandOf = notes.map(h => bands.findIndex(b => h.expectedHz >= b.minHz && h.expectedHz <= b.maxHz))
-  let trackOf = bandOf.map(k => bandTracks[k]!)
   progress(0.3)
   let voicedFrames = 0
   {
@@ -131,73 +132,78 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
   if (clipWarn) warnings.push({ code: 'clipping', message: `${(100 * clippedShare).toFixed(1)} % of the sounding samples are clipped; record a little quieter next time` })
   if (peak < 0.01) warnings.push({ code: 'low_level', message: 'The recording is very quiet (peak below −40 dBFS); measurements may be less certain' })
 
-  // Time map: a first alignment from the pitch track alone, then the map refitted to the onsets
-  // it found (robust to missing and extra chords) and the holds placed again under that map.
-  const boundCache = new Map<CoarseTrack, Uint8Array>()
-  const boundsOf = () => trackOf.map((t) => {
-    if (!boundCache.has(t)) boundCache.set(t, boundaryFrames(t))
-    return boundCache.get(t)!
-  })
-  const onsetPairs = (f: ReturnType<typeof findOnsets>) => f.flatMap((o, i) => (o.onsetS === null ? [] : [{ drillS: notes[i]!.startS, takeS: o.onsetS }]))
-  let alignment = alignHolds(trackOf, notes)
-  // A part inside a sounding chord (the take holds the whole chord): the free pitch search follows
-  // another part (usually the bass) and finds few holds. When it finds fewer than CHORD_TRY_SHARE of
-  // them, the part's own harmonic series is searched for instead, and kept if it finds clearly more.
-  let inChord = false
-  {
-    const foundCount = (a: typeof alignment) => a.placements.filter(p => p.found).length
-    const plain = foundCount(alignment)
-    if (plain < CHORD_TRY_SHARE * notes.length) {
-      const perBand = bands.map(b => chordTracks(pyr, b, notes.map(h => h.expectedHz)))
-      const chordOf = notes.map((h, i) => perBand[bandOf[i]!]!.get(h.expectedHz)!)
-      const a2 = alignHolds(chordOf, notes)
-      if (foundCount(a2) >= Math.max(plain + 2, 1.5 * plain)) {
-        inChord = true
-        bandTracks = perBand.flatMap(m => [...m.values()])
-        trackOf = chordOf
-        alignment = a2
+  // One pass: placement, time map and measurement of every hold over the given coarse tracks.
+  const pass = (trackOf: CoarseTrack[], inChord: boolean, report: (f: number) => void): { holds: MeasuredHold[], map: TimeMap } => {
+    // Time map: a first alignment from the pitch track alone, then the map refitted to the onsets
+    // it found (robust to missing and extra chords) and the holds placed again under that map.
+    const boundCache = new Map<CoarseTrack, Uint8Array>()
+    const bounds = trackOf.map((t) => {
+      if (!boundCache.has(t)) boundCache.set(t, boundaryFrames(t))
+      return boundCache.get(t)!
+    })
+    const onsetPairs = (f: ReturnType<typeof findOnsets>) => f.flatMap((o, i) => (o.onsetS === null ? [] : [{ drillS: notes[i]!.startS, takeS: o.onsetS }]))
+    let alignment = alignHolds(trackOf, notes)
+    let found = findOnsets(trackOf, alignment.placements, notes, bounds)
+    let map: TimeMap = { offsetS: alignment.offsetS, timeScale: alignment.timeScale }
+    const refit = fitTimeMap(onsetPairs(found))
+    if (refit) {
+      alignment = alignHolds(trackOf, notes, { map: refit })
+      found = findOnsets(trackOf, alignment.placements, notes, bounds)
+      map = fitTimeMap(onsetPairs(found)) ?? refit
+    }
+    // A repeated note with no re-articulation (a tie, legato singing): split at the drill's chord
+    // boundary under the map, and the hold says so (timing.start = 'chord_boundary').
+    for (let i = 1; i < notes.length; i++) {
+      const p = alignment.placements[i]!
+      const q = alignment.placements[i - 1]!
+      if (!p.found || !q.found || found[i]!.articulated) continue
+      const cut = map.offsetS + map.timeScale * notes[i]!.startS
+      if (cut > q.startS + 0.2 && cut < p.endS - 0.2) { q.endS = cut; p.startS = cut }
+    }
+    report(0)
+    const holds: MeasuredHold[] = []
+    // Frames the alignment gave to a hold: a missing hold never takes another hold's sound.
+    const used = new Uint8Array(track.times.length)
+    for (const p of alignment.placements) if (p.found) used.fill(1, Math.max(0, p.frameStart), Math.min(used.length, p.frameEnd))
+    for (let i = 0; i < notes.length; i++) {
+      const h = notes[i]!
+      const p = alignment.placements[i]!
+      const expectedDur = map.timeScale * (h.endS - h.startS)
+      let m: MeasuredHold
+      if (!p.found) {
+        m = missing(pyr, h, p.startS, p.endS, trackOf[i]!, used, durationS, expectedDur, clipWarn, opts.trace !== false)
+      } else {
+        m = measureHold(pyr, trackOf[i]!, h, p.startS, p.endS, expectedDur, clipWarn, opts.trace !== false, inChord)
+        m.timing = holdTiming(found[i]!, h, map)
       }
+      holds.push(m)
+      report((i + 1) / notes.length)
+    }
+    return { holds, map }
+  }
+  const measured = (hs: MeasuredHold[]) => hs.filter(hh => hh.detectedHz !== null && hh.reasonCode === null).length
+  const heardSomething = (hs: MeasuredHold[]) => hs.filter(hh => hh.detectedHz !== null).length
+  const plainTracks = bandOf.map(k => bandTracks[k]!)
+  let { holds, map } = pass(plainTracks, false, f => progress(0.4 + 0.5 * f))
+  // A part inside a sounding chord (the take holds the whole chord): the free pitch search follows
+  // another part (usually the bass) and measures few holds. When fewer than CHORD_TRY_SHARE of
+  // them are measured, the part's own harmonic series is searched for instead (pitch.ts
+  // chordTracks), and that pass is kept only when it measures clearly more holds than the free
+  // pass measured or heard as wrong notes (a take of a wrong piece or key stays a take of wrong notes).
+  let inChord = false
+  if (measured(holds) < CHORD_TRY_SHARE * notes.length) {
+    const perBand = bands.map(b => chordTracks(pyr, b, notes.map(h => h.expectedHz)))
+    const chordOf = notes.map((h, i) => perBand[bandOf[i]!]!.get(h.expectedHz)!)
+    const chord = pass(chordOf, true, f => progress(0.9 + 0.1 * f))
+    const n = measured(chord.holds)
+    if (n >= Math.max(measured(holds) + 2, 1.5 * measured(holds)) && n > heardSomething(holds)) {
+      inChord = true
+      holds = chord.holds
+      map = chord.map
     }
   }
-  const bounds = boundsOf()
-  let found = findOnsets(trackOf, alignment.placements, notes, bounds)
-  let map: TimeMap = { offsetS: alignment.offsetS, timeScale: alignment.timeScale }
-  const refit = fitTimeMap(onsetPairs(found))
-  if (refit) {
-    alignment = alignHolds(trackOf, notes, { map: refit })
-    found = findOnsets(trackOf, alignment.placements, notes, bounds)
-    map = fitTimeMap(onsetPairs(found)) ?? refit
-  }
-  // A repeated note with no re-articulation (a tie, legato singing): split at the drill's chord
-  // boundary under the map, and the hold says so (timing.start = 'chord_boundary').
-  for (let i = 1; i < notes.length; i++) {
-    const p = alignment.placements[i]!
-    const q = alignment.placements[i - 1]!
-    if (!p.found || !q.found || found[i]!.articulated) continue
-    const cut = map.offsetS + map.timeScale * notes[i]!.startS
-    if (cut > q.startS + 0.2 && cut < p.endS - 0.2) { q.endS = cut; p.startS = cut }
-  }
-  progress(0.4)
-
-  const holds: MeasuredHold[] = []
+  progress(1)
   const scale = map.timeScale
-  // Frames the alignment gave to a hold: a missing hold never takes another hold's sound.
-  const used = new Uint8Array(track.times.length)
-  for (const p of alignment.placements) if (p.found) used.fill(1, Math.max(0, p.frameStart), Math.min(used.length, p.frameEnd))
-  for (let i = 0; i < notes.length; i++) {
-    const h = notes[i]!
-    const p = alignment.placements[i]!
-    const expectedDur = scale * (h.endS - h.startS)
-    let m: MeasuredHold
-    if (!p.found) {
-      m = missing(pyr, h, p.startS, p.endS, trackOf[i]!, used, durationS, expectedDur, clipWarn, opts.trace !== false)
-    } else {
-      m = measureHold(pyr, trackOf[i]!, h, p.startS, p.endS, expectedDur, clipWarn, opts.trace !== false, inChord)
-      m.timing = holdTiming(found[i]!, h, map)
-    }
-    holds.push(m)
-    progress(0.4 + 0.6 * (i + 1) / notes.length)
-  }
   // Nothing found and nothing that even resembles a note (no octave or wrong-note findings):
   // the recording holds no measurable notes at all (noise, speech, another piece).
   if (holds.every(hh => hh.detectedHz === null && (hh.reasonCode === 'no_pitch' || hh.reasonCode === 'beyond_take' || hh.reasonCode === 'too_short'))) {
@@ -764,6 +770,12 @@ function measureSteady (tr: RefinedTrack, h: ExpectedHold, startS: number, endS:
   // disagreement (a sampled or real tone whose partials are not quite harmonic: its pitch depends
   // on which harmonics one listens to) bounds how well the centre is known.
   const hm = harmonicMedian(tr, h.expectedHz, steadyStartS, steadyEndS)
+  // In a chord the part's own note must show its fundamental and octave: a series whose low
+  // harmonics are missing is another part's note sharing some of its partials (a fifth or a
+  // third below the expected note, or another piece), never this part's.
+  if (inChord && !(hm && hm.heard[0] && hm.heard[1])) {
+    return notFound(h, startS, endS, 'no_pitch', `The expected note (${h.expectedHz.toFixed(2)} Hz) does not stand out of the chord here`)
+  }
   if (hm && inChord) centreOut = hm.centreCents
   if (hm) seOut = Math.max(se, hm.seCents)
   if (vs && cc) {

@@ -652,6 +652,8 @@ export function fft (re: Float64Array, im: Float64Array): void {
 
 /** Share of a frame's power (up to the harmonics searched) that a part inside a chord must hold to count as sounding. */
 export const CHORD_VOICED_SHARE = 0.08
+/** …and how much more power its harmonics must hold than the bins half-way between them. */
+export const CHORD_CONTRAST = 4
 
 /**
  * Coarse tracks of one part inside a sounding chord (a quartet recorded together, the take
@@ -737,11 +739,20 @@ export function chordTracks (pyr: Pyramid, band: { minHz: number, maxHz: number 
         const hi = Math.min(mag.length - 1, c + 3)
         if (hi >= lo) harm += cumPow[hi + 1]! - cumPow[lo]!
       }
+      // The same bins half-way between the harmonics: a series stands out of them; noise, or
+      // another piece, fills both alike.
+      let mid = 0
+      for (let k = 1; k <= K; k++) {
+        const c = Math.round((k + 0.5) * fBest / binHz)
+        const lo = Math.max(0, c - 3)
+        const hi = Math.min(mag.length - 1, c + 3)
+        if (hi >= lo) mid += cumPow[hi + 1]! - cumPow[lo]!
+      }
       const bTop = Math.min(mag.length - 1, Math.round((K + 0.5) * fBest / binHz))
       const total = cumPow[bTop + 1]! - cumPow[1]!
       hzOf[ni]![j] = fBest
       energyOf[ni]![j] = harm / (Nw * Nw)
-      shareOf[ni]![j] = total > 0 ? harm / total : 0
+      shareOf[ni]![j] = total > 0 && harm >= CHORD_CONTRAST * mid ? harm / total : 0
     })
   }
   const out = new Map<number, CoarseTrack>()
