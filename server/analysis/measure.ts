@@ -35,10 +35,11 @@
 // - A part inside a sounding chord (a quartet recorded together, the take measuring one part):
 //   when the free pitch search measures fewer than 60 % of the holds, each expected note's own
 //   harmonic series is searched for (pitch.ts chordTracks, ±100 ¢ of the note) and that pass is
-//   kept only when it measures clearly more holds than the free pass measured or heard as wrong
-//   notes (a take of a wrong key or piece stays wrong notes; noise stays no_holds). The holds are then refined with long frames (16 periods), no octave
-//   guard and no voice spread (other parts' partials); a hold whose fundamental or octave is not
-//   heard is not this part's note (no_pitch); the centre is the median of
+//   kept only when it measures clearly more holds than the free pass, and more than the free pass
+//   measured plus the wrong notes it heard at one distance (a take in a wrong key or octave stays
+//   wrong notes; noise stays no_holds). Its holds are refined with long frames (16 periods), no
+//   octave guard and no voice spread (other parts' partials); a hold that does not show its own
+//   fundamental is not this part's note (no_pitch); the centre is the median of
 //   the harmonics' own centres (voices.ts harmonicMedian: a harmonic another part sounds on is
 //   pulled aside, the median follows the clear ones) and their disagreement is its SE; the
 //   confidence is at most 0.6 (a partial of another part on the same harmonic cannot always be
@@ -182,21 +183,33 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
     return { holds, map }
   }
   const measured = (hs: MeasuredHold[]) => hs.filter(hh => hh.detectedHz !== null && hh.reasonCode === null).length
-  const heardSomething = (hs: MeasuredHold[]) => hs.filter(hh => hh.detectedHz !== null).length
+  // Wrong notes heard at one and the same distance from the expected ones (to the semitone): the
+  // part played in another key or octave. In a chord the free search hears other parts' notes
+  // instead, at distances that change from chord to chord.
+  const consistentWrong = (hs: MeasuredHold[]) => {
+    const by = new Map<number, number>()
+    for (const hh of hs) {
+      if (hh.reasonCode !== 'wrong_note' || hh.detectedHz === null) continue
+      const k = Math.round(12 * Math.log2(hh.detectedHz / hh.expectedHz))
+      by.set(k, (by.get(k) ?? 0) + 1)
+    }
+    return Math.max(0, ...by.values())
+  }
   const plainTracks = bandOf.map(k => bandTracks[k]!)
   let { holds, map } = pass(plainTracks, false, f => progress(0.4 + 0.5 * f))
   // A part inside a sounding chord (the take holds the whole chord): the free pitch search follows
   // another part (usually the bass) and measures few holds. When fewer than CHORD_TRY_SHARE of
   // them are measured, the part's own harmonic series is searched for instead (pitch.ts
   // chordTracks), and that pass is kept only when it measures clearly more holds than the free
-  // pass measured or heard as wrong notes (a take of a wrong piece or key stays a take of wrong notes).
+  // pass measured, and more than it measured plus the wrong notes it heard at one distance (a take
+  // in a wrong key or octave stays a take of wrong notes).
   let inChord = false
   if (measured(holds) < CHORD_TRY_SHARE * notes.length) {
     const perBand = bands.map(b => chordTracks(pyr, b, notes.map(h => h.expectedHz)))
     const chordOf = notes.map((h, i) => perBand[bandOf[i]!]!.get(h.expectedHz)!)
     const chord = pass(chordOf, true, f => progress(0.9 + 0.1 * f))
     const n = measured(chord.holds)
-    if (n >= Math.max(measured(holds) + 2, 1.5 * measured(holds)) && n > heardSomething(holds)) {
+    if (n >= Math.max(measured(holds) + 2, 1.5 * measured(holds)) && n > measured(holds) + consistentWrong(holds)) {
       inChord = true
       holds = chord.holds
       map = chord.map
@@ -770,10 +783,10 @@ function measureSteady (tr: RefinedTrack, h: ExpectedHold, startS: number, endS:
   // disagreement (a sampled or real tone whose partials are not quite harmonic: its pitch depends
   // on which harmonics one listens to) bounds how well the centre is known.
   const hm = harmonicMedian(tr, h.expectedHz, steadyStartS, steadyEndS)
-  // In a chord the part's own note must show its fundamental and octave: a series whose low
-  // harmonics are missing is another part's note sharing some of its partials (a fifth or a
-  // third below the expected note, or another piece), never this part's.
-  if (inChord && !(hm && hm.heard[0] && hm.heard[1])) {
+  // In a chord the part's own note must show its fundamental (a harmonic whose phase advances
+  // coherently): a series without it is another note sharing some of its partials (the part
+  // played an octave high, or a fifth low, or another part's note a fifth below).
+  if (inChord && !(hm && tr.coherent[0])) {
     return notFound(h, startS, endS, 'no_pitch', `The expected note (${h.expectedHz.toFixed(2)} Hz) does not stand out of the chord here`)
   }
   if (hm && inChord) centreOut = hm.centreCents

@@ -176,6 +176,8 @@ export interface RefinedTrack {
   level: Float64Array
   /** Mean power of each harmonic k = 1…K over the voiced frames. */
   harmonicPower: Float64Array
+  /** 1 for each harmonic k = 1…K whose phase advance was coherent enough to be used (a harmonic the tone really has). */
+  coherent: Uint8Array
   /** Analysis rate, frame length, hop and the span each interval's f0 averages over (s), harmonics used, demodulation frequency. */
   rate: number
   frameS: number
@@ -514,6 +516,7 @@ export function refinePitch (pyr: Pyramid, startS: number, endS: number, refHz: 
     harmonicity,
     level: levelI,
     harmonicPower,
+    coherent: Uint8Array.from(active),
     rate: r,
     frameS: (2 * M + 1) / r,
     hopS: H / r,

@@ -1,7 +1,8 @@
 // The chord search (a take holding the whole chord while the drill asks for one part) on takes
 // of known truth from our synthesiser (server/analysis/synth.ts: the truth of a hold is the mean
 // synthesised log-frequency over its steady window), and the inputs it must not mistake for a
-// chord: noise, and the part played a tritone away from what the drill asks.
+// chord: noise, and the part played an octave high, a fifth low or a tritone away from what the
+// drill asks.
 import { describe, expect, it } from 'vitest'
 import { AnalysisError } from '../../../server/analysis/errors'
 import { measureTake } from '../../../server/analysis/measure'
@@ -44,6 +45,15 @@ describe('inputs that are not a chord', () => {
     const x = new Float32Array(13 * SR)
     for (let i = 0; i < x.length; i++) x[i] = 0.2 * (2 * rand() - 1) * (0.5 + 0.5 * Math.sin(2 * Math.PI * 0.7 * i / SR)) ** 2
     expect(() => measureTake(audio(x), drill, { trace: false })).toThrow(AnalysisError)
+  })
+
+  // An octave high, a fifth low: the expected notes' upper harmonics all sound, their fundamentals do not.
+  it.each([12, -7])('the part played %i semitones away in brass: never measured as the expected notes', (shift) => {
+    const x = synthTake({ sampleRate: SR, durationS: 13, holds: played(shift), timbre: 'brass', snrDb: 30, seed: 4 })
+    const m = measureTake(audio(x), drill, { trace: false })
+    expect(m.warnings.map(w => w.code)).not.toContain('whole_chord')
+    const asRight = m.holds.filter(h => h.reasonCode === null)
+    expect(asRight.length).toBeLessThanOrEqual(1)
   })
 
   it('the part played a tritone (6 semitones) away: wrong notes with the pitch heard, never a chord', () => {
