@@ -8,14 +8,14 @@ import { AnalysisError } from '../../../server/analysis/errors'
 import { measureTake } from '../../../server/analysis/measure'
 import { synthTake, synthTakeWithTruth } from '../../../server/analysis/synth'
 import type { ExpectedHold } from '../../../server/analysis/types'
-import { cents, equalHz } from './helpers'
+import { audioOf, cents, equalHz } from './helpers'
 
 const SR = 16000
 // Equal temperament from A4 = 440 Hz (common practice, MIDI tuning standard).
 const drill: ExpectedHold[] = [60, 62, 64, 65, 67, 65, 64, 62].map((midi, index) => ({
   index, startS: index * 1.5, endS: (index + 1) * 1.5, midi, expectedHz: equalHz(midi),
 }))
-const audio = (samples: Float32Array) => ({ samples, sampleRate: SR, channels: 1 })
+const audio = (samples: Float32Array) => audioOf(samples, SR)
 const played = (semitones: number) => drill.map(h => ({ startS: h.startS + 0.5, endS: h.endS + 0.3, hz: h.expectedHz * Math.pow(2, semitones / 12) }))
 
 describe('a duet: the part measured sounds above a louder part a major sixth below', () => {
