@@ -37,7 +37,9 @@
 //   harmonic series is searched for (pitch.ts chordTracks, ±100 ¢ of the note) and that pass is
 //   kept only when it measures clearly more holds than the free pass, and more than the free pass
 //   measured plus the wrong notes it heard at one distance (a take in a wrong key or octave stays
-//   wrong notes; noise stays no_holds). Its holds are refined with long frames (16 periods), no
+//   wrong notes; noise stays no_holds). Its time map comes from the whole chord's onsets
+//   (timing.ts mapFromOnsets: every part moves at a chord change), not from the part's own few.
+//   Its holds are refined with long frames (16 periods), no
 //   octave guard and no voice spread (other parts' partials); a hold that does not show its own
 //   fundamental is not this part's note (no_pitch); the centre is the median of
 //   the harmonics' own centres (voices.ts harmonicMedian: a harmonic another part sounds on is
@@ -53,7 +55,7 @@ import { AnalysisError } from './errors'
 import type { DecodedAudio } from './decode'
 import { Pyramid, median, quantile } from './dsp'
 import { alignHolds, boundaryFrames } from './align'
-import { findOnsets, fitTimeMap, holdTiming } from './timing'
+import { findOnsets, fitTimeMap, holdTiming, mapFromOnsets } from './timing'
 import type { TimeMap } from './timing'
 import { chordTracks, coarseTrack, noteBands, octaveEvidence, refinePitch } from './pitch'
 import type { CoarseTrack, RefinedTrack } from './pitch'
@@ -134,7 +136,7 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
   if (peak < 0.01) warnings.push({ code: 'low_level', message: 'The recording is very quiet (peak below −40 dBFS); measurements may be less certain' })
 
   // One pass: placement, time map and measurement of every hold over the given coarse tracks.
-  const pass = (trackOf: CoarseTrack[], inChord: boolean, report: (f: number) => void): { holds: MeasuredHold[], map: TimeMap } => {
+  const pass = (trackOf: CoarseTrack[], inChord: boolean, report: (f: number) => void, known: TimeMap | null = null): { holds: MeasuredHold[], map: TimeMap } => {
     // Time map: a first alignment from the pitch track alone, then the map refitted to the onsets
     // it found (robust to missing and extra chords) and the holds placed again under that map.
     const boundCache = new Map<CoarseTrack, Uint8Array>()
@@ -143,10 +145,11 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
       return boundCache.get(t)!
     })
     const onsetPairs = (f: ReturnType<typeof findOnsets>) => f.flatMap((o, i) => (o.onsetS === null ? [] : [{ drillS: notes[i]!.startS, takeS: o.onsetS }]))
-    let alignment = alignHolds(trackOf, notes)
+    let alignment = alignHolds(trackOf, notes, known ? { map: known } : {})
     let found = findOnsets(trackOf, alignment.placements, notes, bounds)
     let map: TimeMap = { offsetS: alignment.offsetS, timeScale: alignment.timeScale }
-    const refit = fitTimeMap(onsetPairs(found))
+    // A map known from the whole chord's onsets is kept: the part's own onsets are fewer.
+    const refit = known ? null : fitTimeMap(onsetPairs(found))
     if (refit) {
       alignment = alignHolds(trackOf, notes, { map: refit })
       found = findOnsets(trackOf, alignment.placements, notes, bounds)
@@ -207,7 +210,15 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
   if (measured(holds) < CHORD_TRY_SHARE * notes.length) {
     const perBand = bands.map(b => chordTracks(pyr, b, notes.map(h => h.expectedHz)))
     const chordOf = notes.map((h, i) => perBand[bandOf[i]!]!.get(h.expectedHz)!)
-    const chord = pass(chordOf, true, f => progress(0.9 + 0.1 * f))
+    // The whole chord's onsets (every part moves at a chord change) give the map; the part's own
+    // series, shared at times with another part's note, would give a poor one.
+    const onsets: number[] = []
+    for (const t of bandTracks) {
+      const bf = boundaryFrames(t)
+      for (let j = 0; j < bf.length; j++) if (bf[j]) onsets.push(t.times[j]! - t.hopS / 2)
+    }
+    const known = mapFromOnsets(onsets, notes.map(h => h.startS))
+    const chord = pass(chordOf, true, f => progress(0.9 + 0.1 * f), known)
     const n = measured(chord.holds)
     if (n >= Math.max(measured(holds) + 2, 1.5 * measured(holds)) && n > measured(holds) + consistentWrong(holds)) {
       inChord = true
