@@ -21,7 +21,7 @@
 // cycles), averaged over the voices (the mean of the voices' log-frequencies).
 import { execFileSync } from 'node:child_process'
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs'
-import { dirname, join } from 'node:path'
+import { dirname, join, resolve } from 'node:path'
 import { fileURLToPath } from 'node:url'
 import { parseArgs } from 'node:util'
 import { encodeWav } from '../server/analysis/wav'
@@ -457,7 +457,9 @@ export function renderBendCheck (dir: string): Array<{ asked: number, measured: 
 }
 
 /** Renders the whole corpus into `dir` (reusing it when the specs and renders are unchanged). */
-export function buildSampledCorpus (dir: string, specs = corpusSpecs()): { takes: RenderedTake[], calibration: Record<string, number>, bendCheck: Array<{ asked: number, measured: number }> } {
+export function buildSampledCorpus (dirIn: string, specs = corpusSpecs()): { takes: RenderedTake[], calibration: Record<string, number>, bendCheck: Array<{ asked: number, measured: number }> } {
+  // FluidSynth runs with the corpus folder as its working directory: relative paths would be resolved twice.
+  const dir = resolve(dirIn)
   mkdirSync(dir, { recursive: true })
   const index = join(dir, 'corpus.json')
   const fingerprint = JSON.stringify(specs)
@@ -486,8 +488,8 @@ export function missingTool (): string | null {
 const root = join(dirname(fileURLToPath(import.meta.url)), '..')
 
 /** The small takes the unit tests read (16 kHz, mono 16-bit WAV, 300–500 kB each): a trumpet line with a wrong note
- *  and a tied repeat, a sung line (voice oohs) with vibrato and a note an octave low, and a five-voice section on one
- *  part. */
+ *  and a tied repeat, a sung line (voice oohs) with vibrato and a note an octave low, a low sung line with vibrato (one
+ *  singer), a five-voice section on one part, and a brass quartet sounding together with one part measured. */
 export function fixtureSpecs (): TakeSpec[] {
   const beats = [2, 2, 2, 2, 2, 2]
   return [
@@ -517,6 +519,24 @@ export function fixtureSpecs (): TakeSpec[] {
         ],
       }],
       offsets: [5, -9, 3, 11, -4], driftCentsPerMin: 0, leadInS: 0.9, lateS: [0.03, 0, 0.05, 0.02, 0.04],
+      repeats: 'rearticulate', gapS: 0.1, rate: 16000,
+    },
+    {
+      id: 'oohs-bass-vibrato', kind: 'voice', label: 'Voice oohs (53), one singer, low line with vibrato ±15 ¢ at 5 Hz',
+      tempo: 72, beats, part: 'P', parts: [{ name: 'P', notes: [48, 53, 55, 48, 45, 48], voices: [{ program: 53, detuneCents: 0, vibrato: { rateHz: 5.0, extentCents: 15, phase: 2.0 } }] }],
+      offsets: [4, -7, 10, -2, 6, -9], driftCentsPerMin: 0, leadInS: 0.7, lateS: [0.01, 0.04, 0, 0.02, 0.05, 0.03],
+      repeats: 'rearticulate', gapS: 0.12, rate: 16000,
+    },
+    {
+      id: 'quartet-horn', kind: 'chord', label: 'Brass quartet (trumpet 56, horn 60, trombone 57, tuba 58) all sounding; the horn part measured',
+      tempo: 80, beats, part: 'Hn',
+      parts: [
+        { name: 'Tpt', notes: [60, 60, 59, 60, 57, 57], voices: [{ program: 56, detuneCents: 0, vibrato: null }] },
+        { name: 'Hn', notes: [52, 53, 50, 52, 52, 50], voices: [{ program: 60, detuneCents: 0, vibrato: null }] },
+        { name: 'Tbn', notes: [43, 45, 43, 43, 45, 45], voices: [{ program: 57, detuneCents: 0, vibrato: null }] },
+        { name: 'Tuba', notes: [36, 41, 43, 36, 33, 38], voices: [{ program: 58, detuneCents: 0, vibrato: null }] },
+      ],
+      offsets: [6, -8, 4, -3, 9, -5], driftCentsPerMin: 0, leadInS: 1, lateS: [0.02, 0, 0.03, 0.01, 0.02, 0],
       repeats: 'rearticulate', gapS: 0.1, rate: 16000,
     },
   ]

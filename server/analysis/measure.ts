@@ -21,13 +21,31 @@
 //   vibrato is found, a sinusoid at its rate, over a whole number of vibrato cycles; the
 //   constant at the window centre is the hold centre (= mean log-frequency of the steady part).
 // - Several voices (a section recorded together): when the harmonics' spread about their moving
-//   centre is 8 ¢ or more (one voice shows a few cents at most), the centre is the harmonics'
+//   centre is 8 ¢ or more (one voice shows a few cents at most) and the pitch track wanders by
+//   2.6 ¢ or more once vibrato is removed (the beats hand it from voice to voice), the centre is the harmonics'
 //   power-weighted frequency over the steady part (voices.ts), which beats do not scramble, its
 //   SE comes from four block centres and the harmonics' disagreement, and the hold reports the
 //   voices' spread (voiceSpreadCents). One voice: voiceSpreadCents null.
+// - SE of the centre: the larger of the four-block SE above and the harmonics' disagreement
+//   (1.4826 × MAD of each harmonic's own centre / √n, voices.ts harmonicMedian): a tone
+//   whose partials are not quite harmonic has a pitch that depends on the harmonics heard.
 // - Confidence (0–1) = usable share (steady length against half the chord, full from 50 %)
 //   × harmonicity ((h − 0.5)/0.4, clamped) × 1/(1 + (spread/15 ¢)²) (one voice only: beats are
 //   not unsteadiness) × 1/(1 + (SE/1 ¢)²) × length (full from 0.4 s) × 0.9 when clipping was seen.
+// - A part inside a sounding chord (a quartet recorded together, the take measuring one part):
+//   when the free pitch search measures fewer than 60 % of the holds, each expected note's own
+//   harmonic series is searched for (pitch.ts chordTracks, ±100 ¢ of the note) and that pass is
+//   kept only when it measures clearly more holds than the free pass, and more than the free pass
+//   measured plus the wrong notes it heard at one distance (a take in a wrong key or octave stays
+//   wrong notes; noise stays no_holds). Its time map comes from the whole chord's onsets
+//   (timing.ts mapFromOnsets: every part moves at a chord change), not from the part's own few.
+//   Its holds are refined with long frames (16 periods), no
+//   octave guard and no voice spread (other parts' partials); a hold that does not show its own
+//   fundamental is not this part's note (no_pitch); the centre is the median of
+//   the harmonics' own centres (voices.ts harmonicMedian: a harmonic another part sounds on is
+//   pulled aside, the median follows the clear ones) and their disagreement is its SE; the
+//   confidence is at most 0.6 (a partial of another part on the same harmonic cannot always be
+//   told apart), and the take warns 'whole_chord'.
 // - Clipping: more than 5 % of the sounding samples at full scale is an error ('clipped': the
 //   recording level was far too high); 0.1–5 % is a warning and lowers confidence slightly.
 // - Digital silence (peak below −80 dBFS) or no pitched frame anywhere → 'silent'; sound but
@@ -37,12 +55,12 @@ import { AnalysisError } from './errors'
 import type { DecodedAudio } from './decode'
 import { Pyramid, median, quantile } from './dsp'
 import { alignHolds, boundaryFrames } from './align'
-import { findOnsets, fitTimeMap, holdTiming } from './timing'
+import { findOnsets, fitTimeMap, holdTiming, mapFromOnsets } from './timing'
 import type { TimeMap } from './timing'
-import { coarseTrack, noteBands, octaveEvidence, refinePitch } from './pitch'
+import { chordTracks, coarseTrack, noteBands, octaveEvidence, refinePitch } from './pitch'
 import type { CoarseTrack, RefinedTrack } from './pitch'
 import { ENGINE_VERSION, WRONG_NOTE_CENTS } from './types'
-import { harmonicCentroid, voiceSpread } from './voices'
+import { harmonicCentroid, harmonicMedian, voiceSpread } from './voices'
 
 export { WRONG_NOTE_CENTS }
 import type { ExpectedHold, HoldReasonCode, MeasuredHold, Measurement, MeasurementWarning } from './types'
@@ -61,6 +79,15 @@ const MIN_STEADY_S = 0.15
 const BIN_S = 0.005
 /** Spread between voices (cents, RMS about the moving centre) above which a hold is taken for several voices. */
 const SEVERAL_VOICES_CENTS = 8
+/** …and slow wander of the phase track (its spread, vibrato removed) of at least this much: voices
+ *  beating hand the track from one to another, one voice does not wander so (calibrated on the
+ *  sampled corpus: one voice or instrument at most 2.4 ¢ where the spread between voices passes
+ *  8 ¢, a section at least 2.8 ¢). */
+const SEVERAL_VOICES_WANDER_CENTS = 2.6
+/** Highest confidence of a hold picked out of a sounding chord (below the 0.8 of a sure hold). */
+const CHORD_CONFIDENCE_MAX = 0.6
+/** Share of the holds below which the free pitch search is taken to follow another part of a sounding chord. */
+const CHORD_TRY_SHARE = 0.6
 
 const log2c = (x: number) => 1200 * Math.log2(x)
 
@@ -87,7 +114,7 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
   // One coarse track per band of expected notes (a part spanning two octaves gets two).
   const bands = noteBands(notes.map(h => h.expectedHz))
   const bandTracks = bands.map(b => coarseTrack(pyr, b))
-  const trackOf = notes.map(h => bandTracks[bands.findIndex(b => h.expectedHz >= b.minHz && h.expectedHz <= b.maxHz)]!)
+  const bandOf = notes.map(h => bands.findIndex(b => h.expectedHz >= b.minHz && h.expectedHz <= b.maxHz))
   progress(0.3)
   let voicedFrames = 0
   {
@@ -108,58 +135,105 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
   if (clipWarn) warnings.push({ code: 'clipping', message: `${(100 * clippedShare).toFixed(1)} % of the sounding samples are clipped; record a little quieter next time` })
   if (peak < 0.01) warnings.push({ code: 'low_level', message: 'The recording is very quiet (peak below −40 dBFS); measurements may be less certain' })
 
-  // Time map: a first alignment from the pitch track alone, then the map refitted to the onsets
-  // it found (robust to missing and extra chords) and the holds placed again under that map.
-  const boundCache = new Map<CoarseTrack, Uint8Array>()
-  const bounds = trackOf.map((t) => {
-    if (!boundCache.has(t)) boundCache.set(t, boundaryFrames(t))
-    return boundCache.get(t)!
-  })
-  const onsetPairs = (f: ReturnType<typeof findOnsets>) => f.flatMap((o, i) => (o.onsetS === null ? [] : [{ drillS: notes[i]!.startS, takeS: o.onsetS }]))
-  let alignment = alignHolds(trackOf, notes)
-  let found = findOnsets(trackOf, alignment.placements, notes, bounds)
-  let map: TimeMap = { offsetS: alignment.offsetS, timeScale: alignment.timeScale }
-  const refit = fitTimeMap(onsetPairs(found))
-  if (refit) {
-    alignment = alignHolds(trackOf, notes, { map: refit })
-    found = findOnsets(trackOf, alignment.placements, notes, bounds)
-    map = fitTimeMap(onsetPairs(found)) ?? refit
-  }
-  // A repeated note with no re-articulation (a tie, legato singing): split at the drill's chord
-  // boundary under the map, and the hold says so (timing.start = 'chord_boundary').
-  for (let i = 1; i < notes.length; i++) {
-    const p = alignment.placements[i]!
-    const q = alignment.placements[i - 1]!
-    if (!p.found || !q.found || found[i]!.articulated) continue
-    const cut = map.offsetS + map.timeScale * notes[i]!.startS
-    if (cut > q.startS + 0.2 && cut < p.endS - 0.2) { q.endS = cut; p.startS = cut }
-  }
-  progress(0.4)
-
-  const holds: MeasuredHold[] = []
-  const scale = map.timeScale
-  // Frames the alignment gave to a hold: a missing hold never takes another hold's sound.
-  const used = new Uint8Array(track.times.length)
-  for (const p of alignment.placements) if (p.found) used.fill(1, Math.max(0, p.frameStart), Math.min(used.length, p.frameEnd))
-  for (let i = 0; i < notes.length; i++) {
-    const h = notes[i]!
-    const p = alignment.placements[i]!
-    const expectedDur = scale * (h.endS - h.startS)
-    let m: MeasuredHold
-    if (!p.found) {
-      m = missing(pyr, h, p.startS, p.endS, trackOf[i]!, used, durationS, expectedDur, clipWarn, opts.trace !== false)
-    } else {
-      m = measureHold(pyr, trackOf[i]!, h, p.startS, p.endS, expectedDur, clipWarn, opts.trace !== false)
-      m.timing = holdTiming(found[i]!, h, map)
+  // One pass: placement, time map and measurement of every hold over the given coarse tracks.
+  const pass = (trackOf: CoarseTrack[], inChord: boolean, report: (f: number) => void, known: TimeMap | null = null): { holds: MeasuredHold[], map: TimeMap } => {
+    // Time map: a first alignment from the pitch track alone, then the map refitted to the onsets
+    // it found (robust to missing and extra chords) and the holds placed again under that map.
+    const boundCache = new Map<CoarseTrack, Uint8Array>()
+    const bounds = trackOf.map((t) => {
+      if (!boundCache.has(t)) boundCache.set(t, boundaryFrames(t))
+      return boundCache.get(t)!
+    })
+    const onsetPairs = (f: ReturnType<typeof findOnsets>) => f.flatMap((o, i) => (o.onsetS === null ? [] : [{ drillS: notes[i]!.startS, takeS: o.onsetS }]))
+    let alignment = alignHolds(trackOf, notes, known ? { map: known } : {})
+    let found = findOnsets(trackOf, alignment.placements, notes, bounds)
+    let map: TimeMap = { offsetS: alignment.offsetS, timeScale: alignment.timeScale }
+    // A map known from the whole chord's onsets is kept: the part's own onsets are fewer.
+    const refit = known ? null : fitTimeMap(onsetPairs(found))
+    if (refit) {
+      alignment = alignHolds(trackOf, notes, { map: refit })
+      found = findOnsets(trackOf, alignment.placements, notes, bounds)
+      map = fitTimeMap(onsetPairs(found)) ?? refit
     }
-    holds.push(m)
-    progress(0.4 + 0.6 * (i + 1) / notes.length)
+    // A repeated note with no re-articulation (a tie, legato singing): split at the drill's chord
+    // boundary under the map, and the hold says so (timing.start = 'chord_boundary').
+    for (let i = 1; i < notes.length; i++) {
+      const p = alignment.placements[i]!
+      const q = alignment.placements[i - 1]!
+      if (!p.found || !q.found || found[i]!.articulated) continue
+      const cut = map.offsetS + map.timeScale * notes[i]!.startS
+      if (cut > q.startS + 0.2 && cut < p.endS - 0.2) { q.endS = cut; p.startS = cut }
+    }
+    report(0)
+    const holds: MeasuredHold[] = []
+    // Frames the alignment gave to a hold: a missing hold never takes another hold's sound.
+    const used = new Uint8Array(track.times.length)
+    for (const p of alignment.placements) if (p.found) used.fill(1, Math.max(0, p.frameStart), Math.min(used.length, p.frameEnd))
+    for (let i = 0; i < notes.length; i++) {
+      const h = notes[i]!
+      const p = alignment.placements[i]!
+      const expectedDur = map.timeScale * (h.endS - h.startS)
+      let m: MeasuredHold
+      if (!p.found) {
+        m = missing(pyr, h, p.startS, p.endS, trackOf[i]!, used, durationS, expectedDur, clipWarn, opts.trace !== false)
+      } else {
+        m = measureHold(pyr, trackOf[i]!, h, p.startS, p.endS, expectedDur, clipWarn, opts.trace !== false, inChord)
+        m.timing = holdTiming(found[i]!, h, map)
+      }
+      holds.push(m)
+      report((i + 1) / notes.length)
+    }
+    return { holds, map }
   }
+  const measured = (hs: MeasuredHold[]) => hs.filter(hh => hh.detectedHz !== null && hh.reasonCode === null).length
+  // Wrong notes heard at one and the same distance from the expected ones (to the semitone): the
+  // part played in another key or octave. In a chord the free search hears other parts' notes
+  // instead, at distances that change from chord to chord.
+  const consistentWrong = (hs: MeasuredHold[]) => {
+    const by = new Map<number, number>()
+    for (const hh of hs) {
+      if (hh.reasonCode !== 'wrong_note' || hh.detectedHz === null) continue
+      const k = Math.round(12 * Math.log2(hh.detectedHz / hh.expectedHz))
+      by.set(k, (by.get(k) ?? 0) + 1)
+    }
+    return Math.max(0, ...by.values())
+  }
+  const plainTracks = bandOf.map(k => bandTracks[k]!)
+  let { holds, map } = pass(plainTracks, false, f => progress(0.4 + 0.5 * f))
+  // A part inside a sounding chord (the take holds the whole chord): the free pitch search follows
+  // another part (usually the bass) and measures few holds. When fewer than CHORD_TRY_SHARE of
+  // them are measured, the part's own harmonic series is searched for instead (pitch.ts
+  // chordTracks), and that pass is kept only when it measures clearly more holds than the free
+  // pass measured, and more than it measured plus the wrong notes it heard at one distance (a take
+  // in a wrong key or octave stays a take of wrong notes).
+  let inChord = false
+  if (measured(holds) < CHORD_TRY_SHARE * notes.length) {
+    const perBand = bands.map(b => chordTracks(pyr, b, notes.map(h => h.expectedHz)))
+    const chordOf = notes.map((h, i) => perBand[bandOf[i]!]!.get(h.expectedHz)!)
+    // The whole chord's onsets (every part moves at a chord change) give the map; the part's own
+    // series, shared at times with another part's note, would give a poor one.
+    const onsets: number[] = []
+    for (const t of bandTracks) {
+      const bf = boundaryFrames(t)
+      for (let j = 0; j < bf.length; j++) if (bf[j]) onsets.push(t.times[j]! - t.hopS / 2)
+    }
+    const known = mapFromOnsets(onsets, notes.map(h => h.startS))
+    const chord = pass(chordOf, true, f => progress(0.9 + 0.1 * f), known)
+    const n = measured(chord.holds)
+    if (n >= Math.max(measured(holds) + 2, 1.5 * measured(holds)) && n > measured(holds) + consistentWrong(holds)) {
+      inChord = true
+      holds = chord.holds
+      map = chord.map
+    }
+  }
+  progress(1)
+  const scale = map.timeScale
   // Nothing found and nothing that even resembles a note (no octave or wrong-note findings):
   // the recording holds no measurable notes at all (noise, speech, another piece).
   if (holds.every(hh => hh.detectedHz === null && (hh.reasonCode === 'no_pitch' || hh.reasonCode === 'beyond_take' || hh.reasonCode === 'too_short'))) {
     throw new AnalysisError('no_holds', { reasons: holds.map(hh => hh.reasonCode) })
   }
+  if (inChord) warnings.push({ code: 'whole_chord', message: 'The take holds the whole chord: this part was picked out by its own harmonics, so its holds are less certain than a take of the part alone' })
   const notFound = holds.filter(hh => hh.detectedHz === null).length
   if (notFound > 0) warnings.push({ code: 'holds_missing', message: `${notFound} of ${holds.length} holds could not be measured` })
   return {
@@ -486,7 +560,7 @@ function vibratoGain (nu: number, tr: RefinedTrack): number {
 }
 
 function measureHold (pyr: Pyramid, track: CoarseTrack, h: ExpectedHold, startS: number, endS: number,
-  expectedDur: number, clipWarn: boolean, withTrace: boolean): MeasuredHold {
+  expectedDur: number, clipWarn: boolean, withTrace: boolean, inChord = false): MeasuredHold {
   // Octave the detector heard: majority over the run's voiced frames.
   const a = Math.max(0, Math.floor(startS / track.hopS))
   const b = Math.min(track.times.length, Math.ceil(endS / track.hopS))
@@ -508,11 +582,12 @@ function measureHold (pyr: Pyramid, track: CoarseTrack, h: ExpectedHold, startS:
   const guessCents = median(rests)
   const guessHz = h.expectedHz * Math.pow(2, guessCents / 1200)
 
-  const tr = refinePitch(pyr, startS, endS, guessHz)
+  const tr = refinePitch(pyr, startS, endS, guessHz, { chord: inChord })
   // Octave guard, on the refined pitch (the coarse one can be tens of cents off when the
   // detector heard another octave): when the detector heard another octave, could not reach the
-  // one below, or the odd harmonics are missing, long-window harmonic evidence decides.
-  {
+  // one below, or the odd harmonics are missing, long-window harmonic evidence decides. Not in a
+  // chord: the other parts sound at the octaves and half-way points it probes.
+  if (!inChord) {
     let odd = 0
     let even = 0
     for (let k = 0; k < tr.harmonics; k++) { if (k % 2 === 0) odd += tr.harmonicPower[k]!; else even += tr.harmonicPower[k]! }
@@ -533,14 +608,14 @@ function measureHold (pyr: Pyramid, track: CoarseTrack, h: ExpectedHold, startS:
       }
     }
   }
-  const m = measureSteady(tr, h, startS, endS, expectedDur, clipWarn, withTrace)
+  const m = measureSteady(tr, h, startS, endS, expectedDur, clipWarn, withTrace, inChord)
   if (m.detectedHz !== null && Math.abs(centsFromExpected(m)!) > WRONG_NOTE_CENTS) return asWrongNote(m, h)
   return m
 }
 
 // The steady part of a refined track: plateau, trims, robust centre, spread, vibrato, confidence.
 function measureSteady (tr: RefinedTrack, h: ExpectedHold, startS: number, endS: number,
-  expectedDur: number, clipWarn: boolean, withTrace: boolean): MeasuredHold {
+  expectedDur: number, clipWarn: boolean, withTrace: boolean, inChord = false): MeasuredHold {
   const bins = binTrack(tr, h.expectedHz, startS, endS)
   const n = bins.c.length
   // Main plateau: the longest run (gaps ≤ 60 ms) within 100 ¢ of the run's median.
@@ -712,8 +787,21 @@ function measureSteady (tr: RefinedTrack, h: ExpectedHold, startS: number, endS:
   let seOut = se
   let steadiness = 1 / (1 + (spread / 15) ** 2)
   let voiceSpreadCents: number | null = null
-  const vs = voiceSpread(tr, steadyStartS, steadyEndS)
-  const cc = vs && vs.cents >= SEVERAL_VOICES_CENTS ? harmonicCentroid(tr, h.expectedHz, steadyStartS, steadyEndS) : null
+  // In a chord the other parts' partials beat with the part's harmonics: no voices are told apart.
+  const vs = inChord ? null : voiceSpread(tr, steadyStartS, steadyEndS)
+  const cc = vs && vs.cents >= SEVERAL_VOICES_CENTS && spread >= SEVERAL_VOICES_WANDER_CENTS ? harmonicCentroid(tr, h.expectedHz, steadyStartS, steadyEndS) : null
+  // The harmonics' own centres: in a chord their weighted median is the centre; alone, their
+  // disagreement (a sampled or real tone whose partials are not quite harmonic: its pitch depends
+  // on which harmonics one listens to) bounds how well the centre is known.
+  const hm = harmonicMedian(tr, h.expectedHz, steadyStartS, steadyEndS)
+  // In a chord the part's own note must show its fundamental (a harmonic whose phase advances
+  // coherently): a series without it is another note sharing some of its partials (the part
+  // played an octave high, or a fifth low, or another part's note a fifth below).
+  if (inChord && !(hm && tr.coherent[0])) {
+    return notFound(h, startS, endS, 'no_pitch', `The expected note (${h.expectedHz.toFixed(2)} Hz) does not stand out of the chord here`)
+  }
+  if (hm && inChord) centreOut = hm.centreCents
+  if (hm) seOut = Math.max(se, hm.seCents)
   if (vs && cc) {
     centreOut = cc.centreCents
     seOut = cc.seCents
@@ -727,6 +815,10 @@ function measureSteady (tr: RefinedTrack, h: ExpectedHold, startS: number, endS:
     (1 / (1 + seOut * seOut)) *
     Math.min(1, steadyS / 0.4) *
     (clipWarn ? 0.9 : 1)
+  // A part picked out of a chord: where another part's partial sounds on the same harmonics (an
+  // octave or a fifth in the chord) the two cannot be told apart and the centre can move by a few
+  // cents unseen, so such a hold is never reported as sure.
+  const confOut = inChord ? Math.min(CHORD_CONFIDENCE_MAX, conf) : conf
   const detectedHz = h.expectedHz * Math.pow(2, centreOut / 1200)
   const out: MeasuredHold = {
     index: h.index,
@@ -735,7 +827,7 @@ function measureSteady (tr: RefinedTrack, h: ExpectedHold, startS: number, endS:
     detectedHz: round(detectedHz, 5),
     spreadCents: round(spread, 2),
     slopeCentsPerS: round(fit.slope, 2),
-    confidence: round(Math.max(0, Math.min(1, conf)), 2),
+    confidence: round(Math.max(0, Math.min(1, confOut)), 2),
     vibrato,
     reason: null,
     reasonCode: null,

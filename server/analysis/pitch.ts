@@ -156,6 +156,12 @@ export function energyGate (energy: Float64Array): number {
 export interface RefineOptions {
   /** Largest number of harmonics (default 10; fewer at high pitch). */
   maxHarmonics?: number
+  /** A part inside a sounding chord: frames of 16 periods (the part's harmonics apart from the
+   *  other parts' partials), and a frame's harmonic share is the power at the part's harmonics
+   *  against the power half-way between them (the other parts fill the rest of the spectrum). */
+  chord?: boolean
+  /** Harmonics (index k−1) to leave out: in a chord, those another part's partials sound on. */
+  skip?: boolean[]
 }
 
 export interface RefinedTrack {
@@ -170,6 +176,8 @@ export interface RefinedTrack {
   level: Float64Array
   /** Mean power of each harmonic k = 1…K over the voiced frames. */
   harmonicPower: Float64Array
+  /** 1 for each harmonic k = 1…K whose phase advance was coherent enough to be used (a harmonic the tone really has). */
+  coherent: Uint8Array
   /** Analysis rate, frame length, hop and the span each interval's f0 averages over (s), harmonics used, demodulation frequency. */
   rate: number
   frameS: number
@@ -217,9 +225,10 @@ export function refinePitch (pyr: Pyramid, startS: number, endS: number, refHz: 
   const P = r / refHz
   // Frames of 2M+1 ≈ 3 periods (at least 6 ms, so high notes do not make thousands of frames a
   // second), hop M: between frames harmonic k may stray ±r/(2Hk) from the prediction.
-  const span = Math.max(1.5 * P, 0.003 * r)
+  const span = Math.max((opts.chord ? 8 : 1.5) * P, 0.003 * r)
   const M = Math.max(4, Math.round(span))
-  const H = Math.max(1, Math.round(span))
+  // In a chord the long frames overlap more, so the track keeps a point every few tens of ms.
+  const H = Math.max(1, Math.round(opts.chord ? span / 4 : span))
   const first = Math.max(M, Math.ceil(startS * r) + M)
   const last = Math.min(x.length - 1 - M, Math.floor(endS * r) - M)
   const nF = last >= first ? Math.floor((last - first) / H) + 1 : 0
@@ -238,10 +247,12 @@ export function refinePitch (pyr: Pyramid, startS: number, endS: number, refHz: 
   // harmonic share of a frame (voicing) must count every harmonic in the band, or a voice whose
   // formant lifts the 8th harmonic would look unvoiced.
   const Kall = Math.max(K, Math.min(K + 8, Math.floor(0.48 * r / refHz)))
-  const kc = new Float64Array(Kall * (M + 1))
-  const ks = new Float64Array(Kall * (M + 1))
-  for (let q = 0; q < Kall; q++) {
-    const th = TWO_PI * (q + 1) * refHz / r
+  // In a chord, probes half-way between the harmonics ((q + 1.5)·f) follow the kernels.
+  const nProbe = opts.chord ? 2 * Kall : Kall
+  const kc = new Float64Array(nProbe * (M + 1))
+  const ks = new Float64Array(nProbe * (M + 1))
+  for (let q = 0; q < nProbe; q++) {
+    const th = TWO_PI * (q < Kall ? q + 1 : q - Kall + 1.5) * refHz / r
     for (let n = 0; n <= M; n++) {
       kc[q * (M + 1) + n] = win[n]! * Math.cos(th * n)
       ks[q * (M + 1) + n] = win[n]! * Math.sin(th * n)
@@ -272,7 +283,8 @@ export function refinePitch (pyr: Pyramid, startS: number, endS: number, refHz: 
     const framePower = e2 / sumW2
     frameLevel[f] = framePower
     let harm = 0
-    for (let q = 0; q < Kall; q++) {
+    let between = 0
+    for (let q = 0; q < nProbe; q++) {
       const base = q * (M + 1)
       let sr = 0
       let si = 0
@@ -281,6 +293,7 @@ export function refinePitch (pyr: Pyramid, startS: number, endS: number, refHz: 
         si -= ks[base + n]! * od[n]!
       }
       const p = sr * sr + si * si
+      if (q >= Kall) { between += p; continue }
       harm += p * compScale
       if (q < K) {
         re[q * nF + f] = sr
@@ -288,7 +301,8 @@ export function refinePitch (pyr: Pyramid, startS: number, endS: number, refHz: 
         pow[q * nF + f] = p
       }
     }
-    frameHarm[f] = framePower > 0 ? Math.min(1, harm / framePower) : 0
+    if (opts.chord) frameHarm[f] = harm > 0 ? harm / (harm + between * compScale) : 0
+    else frameHarm[f] = framePower > 0 ? Math.min(1, harm / framePower) : 0
   }
 
   const harmonicPower = new Float64Array(K)
@@ -333,7 +347,8 @@ export function refinePitch (pyr: Pyramid, startS: number, endS: number, refHz: 
   const lagL = L === 1 ? lag1 : makeLag(L)
 
   const noise = new Float64Array(K).fill(1)
-  const active = new Uint8Array(K).fill(1)
+  const skip = (k: number) => opts.skip?.[k] === true
+  const active = Uint8Array.from({ length: K }, (_, k) => (skip(k) ? 0 : 1))
   const scale = r / (TWO_PI * H)
   // Weights are fixed per harmonic (k²·typical q/noise), not per interval: the mean of a track
   // whose weights do not move telescopes to the end-point phases, which keeps the hold centre
@@ -398,13 +413,14 @@ export function refinePitch (pyr: Pyramid, startS: number, endS: number, refHz: 
         ci += Math.sin(dev)
         n++
       }
-      active[k] = n >= 3 && Math.hypot(cr, ci) / n >= 0.85 ? 1 : 0
+      active[k] = !skip(k) && n >= 3 && Math.hypot(cr, ci) / n >= 0.85 ? 1 : 0
       if (active[k]) any = true
     }
     if (!any) {
       // Nothing is clean: keep the strongest harmonic so the caller can judge the result.
-      let best = 0
-      for (let k = 1; k < K; k++) if (harmonicPower[k]! > harmonicPower[best]!) best = k
+      let best = -1
+      for (let k = 0; k < K; k++) if (!skip(k) && (best < 0 || harmonicPower[k]! > harmonicPower[best]!)) best = k
+      if (best < 0) best = 0
       active[best] = 1
     }
   }
@@ -500,6 +516,7 @@ export function refinePitch (pyr: Pyramid, startS: number, endS: number, refHz: 
     harmonicity,
     level: levelI,
     harmonicPower,
+    coherent: Uint8Array.from(active),
     rate: r,
     frameS: (2 * M + 1) / r,
     hopS: H / r,
@@ -599,4 +616,161 @@ export function octaveEvidence (pyr: Pyramid, startS: number, endS: number, f: n
     half: half / (frames * K),
     noise: noise / (frames * K),
   }
+}
+
+/** In-place radix-2 complex FFT (length a power of two). */
+export function fft (re: Float64Array, im: Float64Array): void {
+  const n = re.length
+  for (let i = 1, j = 0; i < n; i++) {
+    let bit = n >> 1
+    for (; j & bit; bit >>= 1) j ^= bit
+    j ^= bit
+    if (i < j) {
+      let t = re[i]!; re[i] = re[j]!; re[j] = t
+      t = im[i]!; im[i] = im[j]!; im[j] = t
+    }
+  }
+  for (let len = 2; len <= n; len <<= 1) {
+    const ang = -TWO_PI / len
+    const wr = Math.cos(ang)
+    const wi = Math.sin(ang)
+    const half = len >> 1
+    for (let i = 0; i < n; i += len) {
+      let cr = 1
+      let ci = 0
+      for (let k = 0; k < half; k++) {
+        const a = i + k
+        const b = a + half
+        const tr = re[b]! * cr - im[b]! * ci
+        const ti = re[b]! * ci + im[b]! * cr
+        re[b] = re[a]! - tr; im[b] = im[a]! - ti
+        re[a]! += tr; im[a]! += ti
+        const t = cr * wr - ci * wi
+        ci = cr * wi + ci * wr
+        cr = t
+      }
+    }
+  }
+}
+
+/** Share of a frame's power (up to the harmonics searched) that a part inside a chord must hold to count as sounding. */
+export const CHORD_VOICED_SHARE = 0.08
+/** …and how much more power its harmonics must hold than the bins half-way between them (on the
+ *  corpus 4 lost half the trombone's frames under a brass quartet; 2.5 still keeps noise out). */
+export const CHORD_CONTRAST = 2.5
+
+/**
+ * Coarse tracks of one part inside a sounding chord (a quartet recorded together, the take
+ * measuring one of its parts), one per expected note of the band. The strongest fundamental there
+ * is usually another part's (the bass), so instead of a free pitch search each frame looks for the
+ * harmonic series of that note: for every candidate f0 within ±100 ¢ of it, the summed spectral
+ * magnitude at its first K harmonics (magnitudes, not powers, so that one loud partial of another
+ * part cannot outweigh a whole series). The best candidate is the frame's pitch; the frame counts
+ * as voiced when that series holds at least CHORD_VOICED_SHARE of the frame's power below
+ * (K + ½)·f0. The energy is the series' own power, so a re-articulation of the part shows as a dip
+ * even while the other parts sound on. One spectrum per frame serves every note.
+ */
+export function chordTracks (pyr: Pyramid, band: { minHz: number, maxHz: number }, notesHz: number[], hopS = 0.03): Map<number, CoarseTrack> {
+  const K = Math.max(3, Math.min(8, Math.floor(4000 / band.maxHz)))
+  const top = (K + 0.5) * band.maxHz * Math.pow(2, 100 / 1200)
+  const level = pyr.pick(0, top)
+  const r = pyr.rate(level)
+  const x = pyr.level(level)
+  // Frames of ≥ 10 periods of the lowest note (and ≥ 90 ms): the part's harmonics stand apart
+  // from the other parts' partials. Zero-padded twice for a finer spectrum.
+  const Nw = pow2(Math.ceil(r * Math.max(0.09, 10 / band.minHz)))
+  const N = 2 * Nw
+  const binHz = r / N
+  const win = new Float64Array(Nw)
+  for (let i = 0; i < Nw; i++) win[i] = 0.5 - 0.5 * Math.cos(TWO_PI * (i + 0.5) / Nw)
+  const notes = [...new Set(notesHz)].filter(f => f >= band.minHz && f <= band.maxHz)
+  const grid: number[] = []
+  for (let c = -100; c <= 100; c += 5) grid.push(Math.pow(2, c / 1200))
+  const durationS = pyr.level(0).length / pyr.sampleRate
+  const nFrames = Math.max(0, Math.floor(durationS / hopS))
+  const times = new Float64Array(nFrames)
+  for (let j = 0; j < nFrames; j++) times[j] = (j + 0.5) * hopS
+  const hzOf = notes.map(() => new Float64Array(nFrames))
+  const energyOf = notes.map(() => new Float64Array(nFrames))
+  const shareOf = notes.map(() => new Float64Array(nFrames))
+  const re = new Float64Array(N)
+  const im = new Float64Array(N)
+  const mag = new Float64Array(N / 2 + 1)
+  const sal = new Float64Array(grid.length)
+  const magAt = (f: number) => {
+    const p = f / binHz
+    const i = Math.floor(p)
+    if (i + 1 >= mag.length) return 0
+    return mag[i]! + (mag[i + 1]! - mag[i]!) * (p - i)
+  }
+  const cumPow = new Float64Array(mag.length + 1)
+  for (let j = 0; j < nFrames; j++) {
+    const a = Math.round(times[j]! * r) - (Nw >> 1)
+    if (a < 0 || a + Nw > x.length) continue
+    re.fill(0)
+    im.fill(0)
+    for (let i = 0; i < Nw; i++) re[i] = x[a + i]! * win[i]!
+    fft(re, im)
+    for (let b = 0; b < mag.length; b++) {
+      const p = re[b]! * re[b]! + im[b]! * im[b]!
+      mag[b] = Math.sqrt(p)
+      cumPow[b + 1] = cumPow[b]! + p
+    }
+    notes.forEach((fNote, ni) => {
+      let best = 0
+      for (let q = 0; q < grid.length; q++) {
+        let s = 0
+        const f = fNote * grid[q]!
+        for (let k = 1; k <= K; k++) s += magAt(k * f)
+        sal[q] = s
+        if (s > sal[best]!) best = q
+      }
+      // Parabola through the best and its neighbours.
+      let d = 0
+      if (best > 0 && best < grid.length - 1) {
+        const y0 = sal[best - 1]!
+        const y1 = sal[best]!
+        const y2 = sal[best + 1]!
+        const den = y0 - 2 * y1 + y2
+        d = den < 0 ? Math.max(-0.5, Math.min(0.5, 0.5 * (y0 - y2) / den)) : 0
+      }
+      const fBest = fNote * grid[best]! * Math.pow(2, 5 * d / 1200)
+      // Power of the series (each harmonic's main lobe) against the frame's power below (K + ½)·f0.
+      let harm = 0
+      for (let k = 1; k <= K; k++) {
+        const c = Math.round(k * fBest / binHz)
+        const lo = Math.max(0, c - 3)
+        const hi = Math.min(mag.length - 1, c + 3)
+        if (hi >= lo) harm += cumPow[hi + 1]! - cumPow[lo]!
+      }
+      // The same bins half-way between the harmonics: a series stands out of them; noise, or
+      // another piece, fills both alike.
+      let mid = 0
+      for (let k = 1; k <= K; k++) {
+        const c = Math.round((k + 0.5) * fBest / binHz)
+        const lo = Math.max(0, c - 3)
+        const hi = Math.min(mag.length - 1, c + 3)
+        if (hi >= lo) mid += cumPow[hi + 1]! - cumPow[lo]!
+      }
+      const bTop = Math.min(mag.length - 1, Math.round((K + 0.5) * fBest / binHz))
+      const total = cumPow[bTop + 1]! - cumPow[1]!
+      hzOf[ni]![j] = fBest
+      energyOf[ni]![j] = harm / (Nw * Nw)
+      shareOf[ni]![j] = total > 0 && harm >= CHORD_CONTRAST * mid ? harm / total : 0
+    })
+  }
+  const out = new Map<number, CoarseTrack>()
+  notes.forEach((fNote, ni) => {
+    const hz = hzOf[ni]!
+    const energy = energyOf[ni]!
+    const gate = energyGate(energy)
+    const voiced = new Uint8Array(nFrames)
+    for (let j = 0; j < nFrames; j++) {
+      if (energy[j]! > gate && shareOf[ni]![j]! >= CHORD_VOICED_SHARE) voiced[j] = 1
+      else hz[j] = 0
+    }
+    // reachHz 0: the frames never look an octave down (other parts sound there).
+    out.set(fNote, { hopS, times, hz, energy, gate, voiced, rate: r, reachHz: 0 })
+  })
+  return out
 }

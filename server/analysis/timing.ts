@@ -136,3 +136,39 @@ function weightedMedian (v: Array<{ v: number, w: number }>): number {
 function round3 (v: number): number {
   return Math.round(v * 1000) / 1000
 }
+
+/**
+ * The take's map from where it changes at all (the whole chord's onsets: every part moves at a
+ * chord change) against the drill's chord starts: the offset and tempo (0.8–1.25 of the drill's,
+ * in 0.5 % steps) that put the most chord starts within 0.1 s of an onset, refined by a robust fit
+ * to those pairs. Null when fewer than half the chords (and fewer than three) meet an onset.
+ */
+export function mapFromOnsets (onsetsS: number[], chordStartsS: number[]): TimeMap | null {
+  const on = [...onsetsS].sort((a, b) => a - b)
+  const starts = [...new Set(chordStartsS)].sort((a, b) => a - b)
+  if (on.length < 3 || starts.length < 3) return null
+  const nearest = (t: number) => {
+    let lo = 0
+    let hi = on.length - 1
+    while (hi - lo > 1) { const mid = (lo + hi) >> 1; if (on[mid]! < t) lo = mid; else hi = mid }
+    return Math.abs(on[lo]! - t) < Math.abs(on[hi]! - t) ? on[lo]! : on[hi]!
+  }
+  let best = { hits: 0, o: 0, s: 1 }
+  for (let s = 0.8; s <= 1.25 + 1e-9; s *= 1.005) {
+    for (const t of on) {
+      for (const d of starts) {
+        const o = t - s * d
+        let hits = 0
+        for (const d2 of starts) if (Math.abs(nearest(o + s * d2) - (o + s * d2)) <= 0.1) hits++
+        if (hits > best.hits || (hits === best.hits && Math.abs(Math.log(s)) < Math.abs(Math.log(best.s)))) best = { hits, o, s }
+      }
+    }
+  }
+  if (best.hits < Math.max(3, 0.5 * starts.length)) return null
+  const pairs = starts.flatMap((d) => {
+    const t = best.o + best.s * d
+    const n = nearest(t)
+    return Math.abs(n - t) <= 0.1 ? [{ drillS: d, takeS: n }] : []
+  })
+  return fitTimeMap(pairs) ?? { offsetS: best.o, timeScale: best.s }
+}

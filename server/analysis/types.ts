@@ -61,7 +61,7 @@ export interface MeasuredHold {
 }
 
 export interface MeasurementWarning {
-  code: 'clipping' | 'low_level' | 'holds_missing'
+  code: 'clipping' | 'low_level' | 'holds_missing' | 'whole_chord'
   message: string
 }
 

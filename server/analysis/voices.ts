@@ -173,3 +173,48 @@ export function voiceSpread (tr: RefinedTrack, startS: number, endS: number): Vo
   for (const v of vals) { acc += v.w; if (acc >= half) { med = v.c; break } }
   return { cents: med, perHarmonic: per }
 }
+
+export interface ChordCentre extends CentroidCentre {
+  /** Per harmonic k = 1…K: whether it was heard (within 40 dB of the strongest, 8 intervals or more). */
+  heard: boolean[]
+}
+
+/**
+ * Centre of a part picked out of a sounding chord over [startS, endS]: each harmonic's mean f0
+ * (cents from refHz), then their median (one vote per harmonic heard, within 40 dB of the
+ * strongest: power weights would hand the centre to the one harmonic another part's loud partial
+ * sits on). Such a harmonic is pulled towards the other part's pitch; the median follows the
+ * harmonics clear of the other parts, and their disagreement (1.4826 × MAD / √n) is the standard
+ * error. Null when fewer than three harmonics are heard.
+ */
+export function harmonicMedian (tr: RefinedTrack, refHz: number, startS: number, endS: number): ChordCentre | null {
+  const n = tr.partials.times.length
+  const ms = intervals(tr, startS, endS)
+  const { f0, power } = tr.partials
+  const perK: Array<{ k: number, c: number, w: number }> = []
+  for (let k = 0; k < tr.harmonics; k++) {
+    let s = 0
+    let p = 0
+    let cnt = 0
+    for (const m of ms) {
+      const f = f0[k * n + m]!
+      if (!(f > 0)) continue
+      s += log2c(f / refHz)
+      p += power[k * n + m]!
+      cnt++
+    }
+    if (cnt >= 8 && p > 0) perK.push({ k, c: s / cnt, w: p / cnt })
+  }
+  const top = Math.max(0, ...perK.map(p => p.w))
+  const votes = perK.filter(p => p.w >= 1e-4 * top)
+  if (votes.length < 3) return null
+  const med = (v: number[]) => {
+    const a = [...v].sort((p, q) => p - q)
+    const m = a.length >> 1
+    return a.length % 2 ? a[m]! : (a[m - 1]! + a[m]!) / 2
+  }
+  const centre = med(votes.map(p => p.c))
+  const mad = med(votes.map(p => Math.abs(p.c - centre)))
+  const heard = Array.from({ length: tr.harmonics }, (_, k) => votes.some(p => p.k === k))
+  return { centreCents: centre, seCents: Math.max(0.05, 1.4826 * mad / Math.sqrt(votes.length)), harmonics: votes.length, heard }
+}

@@ -4,7 +4,7 @@
 import { describe, expect, it } from 'vitest'
 import { measureTake } from '../../../server/analysis/measure'
 import { synthTakeWithTruth } from '../../../server/analysis/synth'
-import { fitTimeMap } from '../../../server/analysis/timing'
+import { fitTimeMap, mapFromOnsets } from '../../../server/analysis/timing'
 import { audioOf, cents, equalHz, planOf, takeOf } from './helpers'
 
 const LINE = [65, 67, 63, 62, 60, 62, 65, 58]
@@ -24,6 +24,21 @@ describe('fitTimeMap', () => {
   it('needs three onsets and a plausible tempo', () => {
     expect(fitTimeMap([{ drillS: 0, takeS: 1 }, { drillS: 3, takeS: 4 }])).toBeNull()
     expect(fitTimeMap([0, 1, 2].map(d => ({ drillS: d, takeS: 3 * d })))).toBeNull()
+  })
+})
+
+describe('mapFromOnsets (a whole chord\'s onsets against the drill\'s chord starts)', () => {
+  // Chords every 1.5 s on the drill; the take 4 % slower, starting 1.2 s in: t = 1.2 + 1.04·d.
+  const starts = [0, 1.5, 3, 4.5, 6, 7.5, 9, 10.5]
+  it('recovers the map with a chord missing, two extra onsets (tremolo, a breath) and 30 ms of jitter', () => {
+    const onsets = starts.filter((_, i) => i !== 5).map((d, i) => 1.2 + 1.04 * d + (i % 2 ? 0.03 : -0.02))
+    onsets.push(3.9, 8.35)
+    const m = mapFromOnsets(onsets, starts)!
+    expect(Math.abs(m.timeScale - 1.04)).toBeLessThan(0.01)
+    expect(Math.abs(m.offsetS - 1.2)).toBeLessThan(0.06)
+  })
+  it('gives nothing when the onsets do not fit the chords', () => {
+    expect(mapFromOnsets([0.3, 5.1], starts)).toBeNull()
   })
 })
 
