@@ -8,7 +8,7 @@ import { join } from 'node:path'
 import Database from 'better-sqlite3'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
-import { demoPassword, launchBrowser, startApp, type App } from './harness'
+import { appReady, demoPassword, launchBrowser, startApp, type App } from './harness'
 import { seedVolume, VOLUME_DIRECTOR } from '../../scripts/seed-volume'
 import { dbQuery } from './takes-helpers'
 import { recordAssignees } from './charts-helpers'
@@ -51,6 +51,7 @@ async function signedIn(email: string, width: number): Promise<Page> {
   page.setDefaultTimeout(60_000)
   page.setDefaultNavigationTimeout(90_000)
   await page.goto(`${app.url}/login`)
+  await appReady(page)
   await page.getByLabel('E-mail').fill(email)
   await page.getByLabel('Password').fill(demoPassword())
   await page.getByLabel('Password').press('Enter')

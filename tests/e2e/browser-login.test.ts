@@ -2,7 +2,7 @@
 // the seeded demo scenario.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
-import { demoAccounts, demoPassword, launchBrowser, startApp, type App } from './harness'
+import { appReady, demoAccounts, demoPassword, launchBrowser, startApp, type App } from './harness'
 
 let app: App
 let browser: Browser
@@ -61,6 +61,7 @@ describe('signing in through the browser', () => {
     expect(home.memberships.some(m => m.role === 'director')).toBe(true)
     const page = await newPage()
     await page.goto(`${app.url}/login`)
+    await appReady(page)
     await signIn(page, director.email, demoPassword())
     await page.waitForURL(`${app.url}/`)
     const greeting = page.getByTestId('home-greeting')
@@ -95,6 +96,7 @@ describe('signing in through the browser', () => {
 
     const page = await newPage()
     await page.goto(`${app.url}/login`)
+    await appReady(page)
     await signIn(page, director.email, 'definitely not it')
     const alert = page.getByRole('alert')
     await alert.waitFor()
@@ -120,6 +122,7 @@ describe('signing in through the browser', () => {
   it('signing out returns to the sign-in page and ends the session', async () => {
     const page = await newPage()
     await page.goto(`${app.url}/login`)
+    await appReady(page)
     await signIn(page, director.email, demoPassword())
     await page.waitForURL(`${app.url}/`)
     await page.getByRole('button', { name: 'Sign out' }).click()
@@ -135,6 +138,7 @@ describe('signing in through the browser', () => {
   it('on a phone the navigation folds into a menu button', async () => {
     const page = await newPage(390, 844)
     await page.goto(`${app.url}/login`)
+    await appReady(page)
     await signIn(page, director.email, demoPassword())
     await page.waitForURL(`${app.url}/`)
     const button = page.getByRole('button', { name: 'Menu' })
@@ -152,6 +156,7 @@ describe('signing in through the browser', () => {
   it('keyboard users get a skip link first and land in the main content', async () => {
     const page = await newPage()
     await page.goto(`${app.url}/login`)
+    await appReady(page)
     await signIn(page, director.email, demoPassword())
     await page.waitForURL(`${app.url}/`)
     await page.getByTestId('home-greeting').waitFor()
@@ -164,6 +169,26 @@ describe('signing in through the browser', () => {
     expect(await focused.isVisible()).toBe(true)
     await page.keyboard.press('Enter')
     expect(await page.evaluate(() => document.activeElement?.id)).toBe('main')
+    await page.context().close()
+  })
+})
+
+describe('typing before the app has started', () => {
+  it('keeps what was typed into the server-rendered sign-in form and signs in with it', async () => {
+    const page = await newPage(390, 844)
+    // The app's scripts arrive late, as on a slow phone: the form is there, the app is not yet.
+    await page.route('**/_nuxt/**/*.js', async (route) => {
+      await new Promise(r => setTimeout(r, 1500))
+      await route.continue()
+    })
+    await page.goto(`${app.url}/login`, { waitUntil: 'commit' })
+    await page.getByLabel('E-mail').fill(director.email)
+    await page.getByLabel('Password').fill(demoPassword())
+    expect(await page.evaluate(() => document.documentElement.hasAttribute('data-app-ready'))).toBe(false)
+    await appReady(page)
+    expect(await page.getByLabel('E-mail').inputValue()).toBe(director.email)
+    await page.getByRole('button', { name: 'Sign in' }).click()
+    await page.waitForURL(`${app.url}/`)
     await page.context().close()
   })
 })

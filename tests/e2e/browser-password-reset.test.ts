@@ -39,6 +39,7 @@ describe('password reset through the pages', () => {
     const page = await context.newPage()
 
     await page.goto(`${app.url}/login`)
+    await appReady(page)
     await page.getByRole('link', { name: 'Forgot password?' }).click()
     await page.waitForURL(/\/forgot-password/)
     await page.getByLabel('E-mail').fill(player)

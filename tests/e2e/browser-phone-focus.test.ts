@@ -5,7 +5,7 @@
 // heading after a page change, and the sign-in pages hydrate without a mismatch.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, ConsoleMessage, Page } from 'playwright-core'
-import { demoAccounts, demoPassword, launchBrowser, startApp, type App } from './harness'
+import { appReady, demoAccounts, demoPassword, launchBrowser, startApp, type App } from './harness'
 
 let app: App
 let browser: Browser
@@ -85,6 +85,7 @@ describe('on a 390-px phone', () => {
   it('the take report is as wide as the viewport and every hold shows its score on screen', async () => {
     const page = await newPage(390, 844)
     await page.goto(`${app.url}/login?redirect=/takes/${take.id}`)
+    await appReady(page)
     await signIn(page)
     await page.waitForURL(`${app.url}/takes/${take.id}`)
     const cards = page.getByTestId('hold-cards')
@@ -124,6 +125,7 @@ describe('on a 390-px phone', () => {
   it('the drill page is as wide as the viewport and the voicing grid\'s instructions are whole', async () => {
     const page = await newPage(390, 844)
     await page.goto(`${app.url}/login?redirect=/drills/${take.drillId}`)
+    await appReady(page)
     await signIn(page)
     await page.waitForURL(`${app.url}/drills/${take.drillId}`)
     const help = page.getByTestId('voicing-grid-help')
@@ -157,6 +159,7 @@ describe('an equal-temperament drill', () => {
     if (drillId === null) throw new Error('the demo has no equal-temperament drill')
     const page = await newPage(1280, 900)
     await page.goto(`${app.url}/login?redirect=/drills/${drillId}`)
+    await appReady(page)
     await page.getByLabel('E-mail').fill(brass.email)
     await page.getByLabel('Password').fill(demoPassword())
     await page.getByLabel('Password').press('Enter')
@@ -172,6 +175,7 @@ describe('focus', () => {
   it('moves to the error after a failed sign-in, then to the new page\'s heading after each page change', async () => {
     const page = await newPage(1280, 900)
     await page.goto(`${app.url}/login`)
+    await appReady(page)
     await page.getByLabel('E-mail').waitFor()
     await signIn(page, 'not-the-password-at-all')
     const error = page.getByTestId('login-error')

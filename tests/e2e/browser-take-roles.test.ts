@@ -2,7 +2,7 @@
 // from the list and reads a player's take in the player's name; the take form fits the screen.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
-import { demoPassword, launchBrowser, startApp, type App } from './harness'
+import { appReady, demoPassword, launchBrowser, startApp, type App } from './harness'
 import { retryStaleSockets } from './takes-helpers'
 
 const DIRECTOR = 'helena.marsh@example.org'
@@ -31,6 +31,7 @@ async function phonePage(email: string): Promise<Page> {
   page.setDefaultTimeout(60_000)
   page.setDefaultNavigationTimeout(90_000)
   await page.goto(`${app.url}/login`)
+  await appReady(page)
   await page.getByLabel('E-mail').fill(email)
   await page.getByLabel('Password').fill(demoPassword())
   await page.getByLabel('Password').press('Enter')

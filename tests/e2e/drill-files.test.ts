@@ -7,7 +7,7 @@ import { join } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser } from 'playwright-core'
 import pkg from '@tonejs/midi'
-import { demoPassword, launchBrowser, startApp, type App } from './harness'
+import { appReady, demoPassword, launchBrowser, startApp, type App } from './harness'
 import { dbQuery, ensembleId } from './takes-helpers'
 
 const { Midi } = pkg
@@ -156,6 +156,7 @@ describe('in the browser, on a phone', () => {
     page.setDefaultNavigationTimeout(90_000)
     const pageWidth = () => page.evaluate(() => document.documentElement.scrollWidth)
     await page.goto(`${app.url}/login`)
+    await appReady(page)
     await page.getByLabel('E-mail').fill('helena.marsh@example.org')
     await page.getByLabel('Password').fill(demoPassword())
     await page.getByLabel('Password').press('Enter')
