@@ -92,3 +92,26 @@ describe('one part inside a sounding brass quartet', async () => {
     expect(alone.m.warnings.map(w => w.code)).not.toContain('whole_chord')
   })
 })
+
+// The trombone part of the same kind of quartet (take quartet-trombone in truth.json: the truth is
+// aubiopitch on the trombone rendered alone): a horn a sixth above and a tuba a third below
+// (chords 1–2), the tuba at the unison (chord 3) and an octave below (chord 4, A1 under A2).
+describe('the trombone inside a sounding brass quartet', async () => {
+  const { m, holds, spec } = await run('quartet-trombone')
+  const tuba = spec.parts.find(p => p.name === 'Tuba')!
+
+  it('is picked out of the chord: never reported as wrong notes, nothing reported as sure', () => {
+    expect(m.warnings.map(w => w.code)).toContain('whole_chord')
+    for (const h of m.holds) {
+      expect(h.reasonCode, `hold ${h.index}`).not.toBe('wrong_note')
+      expect(h.confidence, `hold ${h.index}`).toBeLessThan(0.8)
+    }
+  })
+
+  it('says the A2 the tuba doubles at A1 cannot be told apart, and measures nothing there', () => {
+    expect(holds[3]!.midi - tuba.notes[3]!).toBe(12)
+    expect(m.holds[3]!.detectedHz).toBeNull()
+    expect(m.holds[3]!.reason).toMatch(/octave below/)
+  })
+})
+
