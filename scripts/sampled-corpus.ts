@@ -539,6 +539,21 @@ export function fixtureSpecs (): TakeSpec[] {
       offsets: [6, -8, 4, -3, 9, -5], driftCentsPerMin: 0, leadInS: 1, lateS: [0.02, 0, 0.03, 0.01, 0.02, 0],
       repeats: 'rearticulate', gapS: 0.1, rate: 16000,
     },
+    {
+      // The trombone between a horn a sixth above and a tuba a third below (chords 1–2: their
+      // partials sit half-way between the trombone's harmonics), at the unison with the tuba
+      // (chord 3) and doubled by it an octave below (chord 4).
+      id: 'quartet-trombone', kind: 'chord', label: 'Brass quartet (trumpet 56, horn 60, trombone 57, tuba 58) all sounding; the trombone part measured',
+      tempo: 80, beats: [2, 3, 2, 2, 3, 2], part: 'Tbn',
+      parts: [
+        { name: 'Tpt', notes: [60, 62, 59, 57, 60, 60], voices: [{ program: 56, detuneCents: 0, vibrato: null }] },
+        { name: 'Hn', notes: [53, 53, 50, 52, 52, 52], voices: [{ program: 60, detuneCents: 0, vibrato: null }] },
+        { name: 'Tbn', notes: [45, 47, 43, 45, 43, 43], voices: [{ program: 57, detuneCents: 0, vibrato: null }] },
+        { name: 'Tuba', notes: [41, 43, 43, 33, 36, 36], voices: [{ program: 58, detuneCents: 0, vibrato: null }] },
+      ],
+      offsets: [-7, 5, 3, -4, 8, -2], driftCentsPerMin: 0, leadInS: 0.9, lateS: [0.01, 0.03, 0, 0.02, 0, 0.01],
+      repeats: 'rearticulate', gapS: 0.1, rate: 16000,
+    },
   ]
 }
 

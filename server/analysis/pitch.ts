@@ -653,6 +653,44 @@ export function fft (re: Float64Array, im: Float64Array): void {
   }
 }
 
+/**
+ * Power at half a note's frequency against its own fundamental and against the quarter points
+ * around it (f/4, 3f/4: noise for any tone at f), over a window: 24 periods of f (Hann) keep the
+ * three apart. Another part sounding an octave (or two) below a note puts its fundamental (or
+ * 2nd harmonic) there and its harmonics on every harmonic of the note.
+ */
+export function subOctaveEvidence (pyr: Pyramid, startS: number, endS: number, f: number): { sub: number, fundamental: number, noise: number } {
+  const level = pyr.pick(0, 1.1 * f)
+  const r = pyr.rate(level)
+  const x = pyr.level(level)
+  const M = Math.max(8, Math.round(12 * r / f))
+  // A window shorter than one frame gets one frame at its centre.
+  const mid = Math.round(0.5 * (startS + endS) * r)
+  let a = Math.max(M, Math.ceil(startS * r) + M)
+  let b = Math.min(x.length - 1 - M, Math.floor(endS * r) - M)
+  if (b < a) { a = Math.max(M, Math.min(x.length - 1 - M, mid)); b = a }
+  const probe = (c: number, hz: number): number => {
+    let sr = 0
+    let si = 0
+    const th = TWO_PI * hz / r
+    for (let n = -M; n <= M; n++) {
+      const v = (0.5 + 0.5 * Math.cos(Math.PI * n / (M + 1))) * x[c + n]!
+      sr += v * Math.cos(th * n)
+      si += v * Math.sin(th * n)
+    }
+    return sr * sr + si * si
+  }
+  let sub = 0
+  let fundamental = 0
+  let noise = 0
+  for (let c = a; c <= b; c += M) {
+    sub += probe(c, 0.5 * f)
+    fundamental += probe(c, f)
+    noise += 0.5 * (probe(c, 0.25 * f) + probe(c, 0.75 * f))
+  }
+  return { sub, fundamental, noise }
+}
+
 /** Share of a frame's power (up to the harmonics searched) that a part inside a chord must hold to count as sounding. */
 export const CHORD_VOICED_SHARE = 0.08
 /** …and how much more power its harmonics must hold than the bins half-way between them (on the
@@ -697,6 +735,7 @@ export function chordTracks (pyr: Pyramid, band: { minHz: number, maxHz: number 
   const im = new Float64Array(N)
   const mag = new Float64Array(N / 2 + 1)
   const sal = new Float64Array(grid.length)
+  const gaps = new Float64Array(K)
   const magAt = (f: number) => {
     const p = f / binHz
     const i = Math.floor(p)
@@ -737,21 +776,34 @@ export function chordTracks (pyr: Pyramid, band: { minHz: number, maxHz: number 
       const fBest = fNote * grid[best]! * Math.pow(2, 5 * d / 1200)
       // Power of the series (each harmonic's main lobe) against the frame's power below (K + ½)·f0.
       let harm = 0
+      let fund = 0
       for (let k = 1; k <= K; k++) {
         const c = Math.round(k * fBest / binHz)
         const lo = Math.max(0, c - 3)
         const hi = Math.min(mag.length - 1, c + 3)
-        if (hi >= lo) harm += cumPow[hi + 1]! - cumPow[lo]!
+        const p = hi >= lo ? cumPow[hi + 1]! - cumPow[lo]! : 0
+        harm += p
+        if (k === 1) fund = p
       }
       // The same bins half-way between the harmonics: a series stands out of them; noise, or
       // another piece, fills both alike.
-      let mid = 0
+      // Other parts' partials that happen to sit half-way (a part a sixth or a tenth above, a
+      // bass a third below: each fills a few gaps, not most) would count against the series:
+      // when the note's own fundamental is a spectral peak standing out of the gaps' median, the
+      // gaps are judged by their median. Without it (another note sharing only upper partials:
+      // the part's fifth below, or a neighbouring note reached within ±100 ¢) the sum stays.
+      let gapSum = 0
       for (let k = 1; k <= K; k++) {
         const c = Math.round((k + 0.5) * fBest / binHz)
         const lo = Math.max(0, c - 3)
         const hi = Math.min(mag.length - 1, c + 3)
-        if (hi >= lo) mid += cumPow[hi + 1]! - cumPow[lo]!
+        gaps[k - 1] = hi >= lo ? cumPow[hi + 1]! - cumPow[lo]! : 0
+        gapSum += gaps[k - 1]!
       }
+      const gapMed = median(gaps)
+      const c1 = Math.round(fBest / binHz)
+      const ownPeak = c1 >= 2 && c1 + 2 < mag.length && mag[c1]! >= mag[c1 - 2]! && mag[c1]! >= mag[c1 + 2]!
+      const mid = ownPeak && fund >= CHORD_CONTRAST * gapMed ? Math.min(gapSum, K * gapMed) : gapSum
       const bTop = Math.min(mag.length - 1, Math.round((K + 0.5) * fBest / binHz))
       const total = cumPow[bTop + 1]! - cumPow[1]!
       hzOf[ni]![j] = fBest

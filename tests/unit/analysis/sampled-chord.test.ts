@@ -44,18 +44,28 @@ describe('one part inside a sounding brass quartet', async () => {
   const doubled = (i: number) => spec.parts.some(p => p.name !== spec.part && p.notes[i] === holds[i]!.midi - 12)
   const measuredHolds = holds.filter(t => m.holds[t.index]!.reasonCode === null)
 
-  it('finds every hold no other part doubles an octave below, inside the horn\'s own notes; a doubled one is measured or said unclear, never a wrong note', () => {
+  it('finds every hold no other part doubles an octave below, inside the horn\'s own notes; a doubled one is said unclear, never measured nor a wrong note', () => {
     expect(holds).toHaveLength(6)
     for (const [i, t] of holds.entries()) {
       const h = m.holds.find(x => x.index === t.index)!
-      if (doubled(i)) expect([null, 'no_pitch'], `hold ${t.index}`).toContain(h.reasonCode)
+      if (doubled(i)) expect(h.reasonCode, `hold ${t.index}`).toBe('no_pitch')
       else expect(h.reasonCode, `hold ${t.index}`).toBeNull()
       if (h.reasonCode !== null) continue
       // Between the note's onset and the next chord's (a sampled note rings on after its note-off).
       expect(h.steadyStartS!, `hold ${t.index}`).toBeGreaterThanOrEqual(t.onS)
       expect(h.steadyEndS!, `hold ${t.index}`).toBeLessThanOrEqual(holds[i + 1]?.onS ?? t.offS + 0.2)
     }
-    expect(measuredHolds.length).toBeGreaterThanOrEqual(5)
+    // Holds 0, 2, 3, 4: every hold the tuba does not double (truth.json, take quartet-horn, parts).
+    expect(measuredHolds.length).toBe(holds.filter((_, i) => !doubled(i)).length)
+  })
+
+  it('says why a hold the tuba doubles an octave below is not measured', () => {
+    // Hold 1: the horn's F3 over the tuba's F2 (truth.json, take quartet-horn, parts Hn and Tuba):
+    // the tuba's fundamental sits at half the horn's note and its harmonics on every one of the
+    // horn's. Found in its place, but the two cannot be told apart.
+    expect(doubled(1)).toBe(true)
+    expect(m.holds[1]!.detectedHz).toBeNull()
+    expect(m.holds[1]!.reason).toMatch(/octave below/)
   })
 
   it('measures each hold found within 4 ¢ of the truth (the horn rendered alone), median within 2 ¢', () => {
@@ -82,3 +92,26 @@ describe('one part inside a sounding brass quartet', async () => {
     expect(alone.m.warnings.map(w => w.code)).not.toContain('whole_chord')
   })
 })
+
+// The trombone part of the same kind of quartet (take quartet-trombone in truth.json: the truth is
+// aubiopitch on the trombone rendered alone): a horn a sixth above and a tuba a third below
+// (chords 1–2), the tuba at the unison (chord 3) and an octave below (chord 4, A1 under A2).
+describe('the trombone inside a sounding brass quartet', async () => {
+  const { m, holds, spec } = await run('quartet-trombone')
+  const tuba = spec.parts.find(p => p.name === 'Tuba')!
+
+  it('is picked out of the chord: never reported as wrong notes, nothing reported as sure', () => {
+    expect(m.warnings.map(w => w.code)).toContain('whole_chord')
+    for (const h of m.holds) {
+      expect(h.reasonCode, `hold ${h.index}`).not.toBe('wrong_note')
+      expect(h.confidence, `hold ${h.index}`).toBeLessThan(0.8)
+    }
+  })
+
+  it('says the A2 the tuba doubles at A1 cannot be told apart, and measures nothing there', () => {
+    expect(holds[3]!.midi - tuba.notes[3]!).toBe(12)
+    expect(m.holds[3]!.detectedHz).toBeNull()
+    expect(m.holds[3]!.reason).toMatch(/octave below/)
+  })
+})
+
