@@ -63,12 +63,42 @@ export function askedVoiceSpread (take: RenderedTake, hold: { steadyStartS: numb
   let sum = 0
   let n = 0
   for (let t = hold.steadyStartS; t <= hold.steadyEndS; t += 0.005) {
-    const c = voices.map(v => v.detuneCents + (v.vibrato ? v.vibrato.extentCents * Math.sin(2 * Math.PI * v.vibrato.rateHz * t + v.vibrato.phase) : 0))
+    const c = voices.map(v => v.detuneCents + (v.vibrato ? v.vibrato.extentCents * Math.sin(2 * Math.PI * v.vibrato.rateHz * t + v.vibrato.phase) : 0) +
+      (v.wander ?? []).reduce((s, w) => s + w.cents * Math.sin(2 * Math.PI * w.rateHz * t + w.phase), 0))
     const mean = c.reduce((a, b) => a + b, 0) / c.length
     sum += c.reduce((a, b) => a + (b - mean) ** 2, 0) / c.length
     n++
   }
   return Math.sqrt(sum / n)
+}
+
+/** Truths agree when aubiopitch and Praat, each on the voices rendered alone, are this close (cents). */
+export const TRUTH_AGREED_CENTS = 0.5
+
+/**
+ * A second truth of every hold from an estimator independent of aubiopitch: Praat on each voice
+ * of the measured part rendered alone, over the same windows (whole vibrato cycles of that
+ * voice), averaged over the voices in log-frequency. Where the two disagree, the hold's pitch
+ * depends on the estimator (a sampled chorus, a sample whose partials are not quite harmonic) and
+ * no sub-cent figure can be checked against it.
+ */
+function soloPraatTruths (take: RenderedTake, work: string): Array<number | null> {
+  const voices = take.spec.parts.find(p => p.name === take.spec.part)!.voices
+  const perVoice = voices.map((v, vi) => praatMeans(take.file.replace(/\.wav$/, `.solo${vi}.wav`), take.holds.map((h) => {
+    let a = h.steadyStartS
+    let b = h.steadyEndS
+    if (v.vibrato) {
+      const keep = Math.floor((b - a) * v.vibrato.rateHz) / v.vibrato.rateHz
+      a = (h.steadyStartS + h.steadyEndS) / 2 - keep / 2
+      b = a + keep
+    }
+    return { a, b, hz: h.truthHz }
+  }), work))
+  return take.holds.map((_, i) => {
+    const all = perVoice.map(pv => pv[i])
+    if (all.some(v => !v)) return null
+    return Math.pow(2, all.reduce((s, v) => s + Math.log2(v!), 0) / all.length)
+  })
 }
 
 interface HoldRow {
@@ -79,6 +109,8 @@ interface HoldRow {
   found: boolean
   err: number | null
   praatErr: number | null
+  /** Praat on each voice rendered alone against aubiopitch's truth, cents (the truth's own uncertainty). */
+  truthAgreement: number | null
   onsetErr: number | null
   confidence: number
   tied: boolean
@@ -109,6 +141,7 @@ export async function sampledTable (dir: string): Promise<string[]> {
       const expected = expectedOf(take)
       const m = measureTake(audio, expected, { trace: false })
       const praat = praatMeans(take.file, take.holds.map(h => ({ a: h.steadyStartS, b: h.steadyEndS, hz: h.truthHz })), work)
+      const soloPraat = soloPraatTruths(take, work)
       take.holds.forEach((t, i) => {
         const held = m.holds.find(h => h.index === t.index)!
         const found = held.detectedHz !== null && held.reasonCode === null
@@ -116,6 +149,7 @@ export async function sampledTable (dir: string): Promise<string[]> {
           kind: take.spec.kind, take: take.spec.id, found,
           err: found ? cents(held.detectedHz!, t.truthHz) : null,
           praatErr: praat[i] ? cents(praat[i]!, t.truthHz) : null,
+          truthAgreement: soloPraat[i] ? cents(soloPraat[i]!, t.truthHz) : null,
           onsetErr: found ? held.startS - t.onS : null,
           confidence: held.confidence, tied: t.tied,
           spread: found ? held.voiceSpreadCents ?? null : null, spreadAsked: askedVoiceSpread(take, t),
@@ -134,13 +168,20 @@ export async function sampledTable (dir: string): Promise<string[]> {
   }
 
   const out: string[] = []
+  const agreed = (r: HoldRow) => r.truthAgreement !== null && Math.abs(r.truthAgreement) <= TRUTH_AGREED_CENTS
+  const agreedCells = (g: HoldRow[]) => {
+    const a = g.filter(agreed)
+    const af = a.filter(r => r.found).map(r => Math.abs(r.err!))
+    const ap = a.filter(r => r.praatErr !== null).map(r => Math.abs(r.praatErr!))
+    return [`${a.length}/${g.length}`, `${f(q(af, 0.5), 3)} / ${f(q(af, 0.95), 3)} (${af.length} found)`, `${f(q(ap, 0.5), 3)} / ${f(q(ap, 0.95), 3)}`]
+  }
   const groups: Array<[string, (r: HoldRow) => boolean, string, string]> = [
     ['instruments (one part)', r => r.kind === 'instrument', '≤ 0.3', '≤ 1.0'],
     ['voices (one singer)', r => r.kind === 'voice', '≤ 0.5', '≤ 1.5'],
     ['sections (3–12 voices)', r => r.kind === 'section', '≤ 0.5', '≤ 1.5'],
     ['whole chords (quartet, one part)', r => r.kind === 'chord', '—', '—'],
   ]
-  const table: string[][] = [['group (holds)', 'found', 'onset ≤ 0.1 s', 'median / p95 |err| ¢ (target)', 'Driftline', 'Praat (given windows)']]
+  const table: string[][] = [['group (holds)', 'found', 'onset ≤ 0.1 s', 'median / p95 |err| ¢ (target)', 'Driftline', 'Praat (given windows)', `truths agree ≤ ${TRUTH_AGREED_CENTS} ¢`, 'Driftline there', 'Praat there']]
   for (const [name, sel, tMed, tP95] of groups) {
     const g = rows.filter(sel)
     if (!g.length) continue
@@ -155,6 +196,7 @@ export async function sampledTable (dir: string): Promise<string[]> {
       `${tMed} / ${tP95}`,
       `${f(q(e, 0.5), 3)} / ${f(q(e, 0.95), 3)}`,
       `${f(q(pe, 0.5), 3)} / ${f(q(pe, 0.95), 3)} (${pe.length})`,
+      ...agreedCells(g),
     ])
   }
   const widths = table[0]!.map((_, c) => Math.max(...table.map(r => [...r[c]!].length)))
@@ -166,10 +208,17 @@ export async function sampledTable (dir: string): Promise<string[]> {
   const hiOk = hi.filter(r => Math.abs(r.err!) <= 1).length
   out.push('')
   out.push(`Confidence calibration: holds at confidence ≥ 0.8 within 1 ¢ of the truth: ${hiOk}/${hi.length} (${f(100 * hiOk / Math.max(1, hi.length), 1)} %; target ≥ 95 %).`)
+  const hiA = hi.filter(agreed)
+  out.push(`  where the truths agree: ${hiA.filter(r => Math.abs(r.err!) <= 1).length}/${hiA.length}.`)
   for (const band of [[0, 0.5], [0.5, 0.8], [0.8, 1.01]] as const) {
     const b = rows.filter(r => r.found && r.confidence >= band[0] && r.confidence < band[1])
     out.push(`  confidence ${band[0]}–${Math.min(1, band[1])}: ${b.length} holds, within 1 ¢: ${b.filter(r => Math.abs(r.err!) <= 1).length}`)
   }
+  const byTake = [...new Set(rows.map(r => r.take))].map((id) => {
+    const d = rows.filter(r => r.take === id && r.truthAgreement !== null).map(r => Math.abs(r.truthAgreement!))
+    return `${id} ${f(q(d, 0.5))}/${f(Math.max(...d))}`
+  })
+  out.push(`Truth agreement per take (aubiopitch vs Praat on each voice alone, median/largest ¢): ${byTake.join(', ')}.`)
   const spreadRows = rows.filter(r => r.spreadAsked !== null && r.found)
   if (spreadRows.length) {
     const told = spreadRows.filter(r => r.spread !== null)

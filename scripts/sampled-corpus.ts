@@ -68,6 +68,10 @@ export interface VoiceSpec {
   program: number
   detuneCents: number
   vibrato: { rateHz: number, extentCents: number, phase: number } | null
+  /** A singer's own slow wander (a sum of slow sinusoids, cents), independent of the other voices. */
+  wander?: Array<{ rateHz: number, cents: number, phase: number }>
+  /** Seconds this voice starts after the part's onset (singers of a section never start together). */
+  startS?: number
 }
 
 export interface PartSpec {
@@ -210,6 +214,31 @@ export function corpusSpecs (): TakeSpec[] {
       })
     }
   }
+  // Sections sung as a section sings: each voice starts up to 40 ms after the others and wanders
+  // on its own by a cent or two, so no two voices keep a fixed phase between them. (Copies of one
+  // sample started together at nearly the same pitch add coherently: their sum is louder or
+  // softer than two voices by the chance of their phase, and no estimator weighs them as two.)
+  // Their own generator keeps every take above as it was.
+  const rand2 = rng(20261203)
+  const uni2 = (lo: number, hi: number) => lo + (hi - lo) * rand2()
+  const sung = (id: string, label: string, program: number, line: number[], n: number, drift = 0) => {
+    const voices: VoiceSpec[] = Array.from({ length: n }, () => ({
+      program, detuneCents: Math.round(uni2(-8, 8)),
+      vibrato: { rateHz: Math.round(uni2(4.6, 6.4) * 100) / 100, extentCents: Math.round(uni2(8, 30)), phase: uni2(0, 2 * Math.PI) },
+      wander: [0.31, 0.77, 1.43].map(rateHz => ({ rateHz: Math.round(rateHz * uni2(0.8, 1.25) * 100) / 100, cents: Math.round(uni2(0.5, 1.5) * 10) / 10, phase: uni2(0, 2 * Math.PI) })),
+      startS: Math.round(uni2(0, 0.04) * 1000) / 1000,
+    }))
+    specs.push({
+      id, kind: 'section', label, tempo: 66, beats: BEATS, part: 'P', parts: [{ name: 'P', notes: line, voices }],
+      offsets: Array.from({ length: line.length }, () => Math.round(uni2(-12, 12))), driftCentsPerMin: drift,
+      leadInS: Math.round(uni2(0.6, 2) * 100) / 100,
+      lateS: Array.from({ length: line.length }, () => Math.round(uni2(0, 0.06) * 1000) / 1000), repeats: 'rearticulate', gapS: 0.1,
+    })
+  }
+  sung('sung-S4', 'Voice oohs (53) ×4 voices, soprano line, own starts and wander', 53, LINES.S!, 4)
+  sung('sung-T6', 'Voice oohs (53) ×6 voices, tenor line, own starts and wander, drift −30 ¢/min', 53, LINES.T!, 6, -30)
+  sung('sung-A8', 'Choir aahs (52) ×8 voices, alto line, own starts and wander', 52, LINES.A!, 8)
+  sung('sung-B12', 'Voice oohs (53) ×12 voices, bass line, own starts and wander', 53, LINES.B!, 12)
   return specs
 }
 
@@ -247,6 +276,7 @@ function partNotes (spec: TakeSpec, part: PartSpec, late: boolean): Timed[] {
 function voiceCents (spec: TakeSpec, v: VoiceSpec, t: number, measured: boolean): number {
   let c = v.detuneCents
   if (v.vibrato) c += v.vibrato.extentCents * Math.sin(2 * Math.PI * v.vibrato.rateHz * t + v.vibrato.phase)
+  for (const w of v.wander ?? []) c += w.cents * Math.sin(2 * Math.PI * w.rateHz * t + w.phase)
   if (measured) {
     const spb = 60 / spec.tempo
     let beat = 0
@@ -292,7 +322,7 @@ function specToMidi (spec: TakeSpec, solo: number | null = null): Uint8Array {
         if (c !== lastBend) { events.push({ tick: ms, order: 2, data: bendBytes(ch, c) }); lastBend = c }
       }
       for (const n of partNotes(spec, part, measured)) {
-        events.push({ tick: Math.round(n.onS * 1000), order: 4, data: [0x90 | ch, n.midi, 100] })
+        events.push({ tick: Math.round((n.onS + (v.startS ?? 0)) * 1000), order: 4, data: [0x90 | ch, n.midi, 100] })
         events.push({ tick: Math.round(n.offS * 1000), order: 3, data: [0x80 | ch, n.midi, 0] })
       }
     }
@@ -310,10 +340,12 @@ function render (midiBytes: Uint8Array, wavPath: string, work: string, rate = RA
  * aubiopitch over a file: [seconds, Hz] frames. Multi-comb with 4096-sample frames: on steady
  * harmonic tones of known pitch (55–1050 Hz) its log-mean is within 0.001 ¢, where YIN-FFT with
  * 2048-sample frames reads up to 15 ¢ sharp at 55 Hz; plain YIN is within 0.01 ¢ below 300 Hz
- * (0.5 ¢ sharp at 1 kHz) and stands in where multi-comb slips an octave (low notes).
+ * (0.5 ¢ sharp at 1 kHz) and stands in where multi-comb slips an octave (low notes). The silence
+ * gate is lowered to −120 dB: one voice of a twelve-voice section, rendered alone at its share of
+ * the level, peaks near −40 dBFS and aubiopitch's default gate reports it as silence.
  */
 export function aubioTrack (wavPath: string, method = 'mcomb', buf = '4096'): Array<[number, number]> {
-  const out = execFileSync('aubiopitch', ['-i', wavPath, '-p', method, '-B', buf, '-H', '256', '-u', 'Hz'], { encoding: 'utf8', maxBuffer: 64 << 20, stdio: ['ignore', 'pipe', 'ignore'] })
+  const out = execFileSync('aubiopitch', ['-i', wavPath, '-p', method, '-B', buf, '-H', '256', '-u', 'Hz', '-s', '-120'], { encoding: 'utf8', maxBuffer: 64 << 20, stdio: ['ignore', 'pipe', 'ignore'] })
   return out.trim().split('\n').map(l => l.trim().split(/\s+/).map(Number) as [number, number]).filter(([, f]) => f > 0)
 }
 
