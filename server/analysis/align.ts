@@ -37,6 +37,10 @@ export interface AlignOptions {
    *  the map, give or take this many seconds (it may start late or end early, never run onto a
    *  neighbouring chord). */
   withinChordS?: number
+  /** Cost of a frame with no pitch inside a hold (default COST_UNVOICED). A part picked out of a
+   *  sounding chord shows its series only where it stands out of the other parts: a frame
+   *  without it there is no silence. */
+  unvoicedCost?: number
 }
 
 // Frame costs relative to "between holds" (which costs 0); negative = evidence for the hold.
@@ -173,7 +177,7 @@ export function alignHolds (tracks: CoarseTrack[], holds: ExpectedHold[], opts: 
   const keyOf = (hz: number) => hz.toFixed(6)
   const costPrefix = new Map<string, Float64Array>()
   const gainPrefix = new Map<string, Float64Array>()
-  const costTable = [COST_MATCH, COST_OCTAVE, COST_NEAR, COST_FAR, COST_UNVOICED]
+  const costTable = [COST_MATCH, COST_OCTAVE, COST_NEAR, COST_FAR, opts.unvoicedCost ?? COST_UNVOICED]
   const gainTable = [GAIN_MATCH, GAIN_OCTAVE, GAIN_NEAR, GAIN_FAR, 0]
   holds.forEach((h, i) => {
     const track = tracks[i]!

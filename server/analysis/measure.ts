@@ -41,7 +41,8 @@
 //   (timing.ts mapFromOnsets: every part moves at a chord change, and the take's sound extent
 //   rules out a map one chord late or early), not from the part's own few; under it each hold
 //   stays on its own chord (±0.15 s: never shifted onto a neighbour, a repeated note is split
-//   there) and is measured from its own onset when one was found (before it sounds the chord before).
+//   there), a frame where its series does not stand out counts little against it (0.2, not 0.8),
+//   and it is measured from its own onset when one was found (before it sounds the chord before).
 //   Its holds are refined with long frames (16 periods), no
 //   octave guard and no voice spread (other parts' partials); a hold that does not show its own
 //   fundamental is not this part's note (no_pitch); the centre is the median of
@@ -100,6 +101,9 @@ const DOUBLED_SUB_FUNDAMENTAL = 0.05
 /** Under a map from the whole chord's onsets a hold stays on its own chord, give or take this
  *  much (the onsets found lie up to a few frames from the chord starts). */
 const CHORD_MAP_TOLERANCE_S = 0.15
+/** …and a frame where its series does not stand out of the chord weighs little against it
+ *  (alone, a frame with no pitch inside a hold costs 0.8 of a matching frame's gain: align.ts). */
+const CHORD_UNVOICED_COST = 0.2
 /** Share of the holds below which the free pitch search is taken to follow another part of a sounding chord. */
 const CHORD_TRY_SHARE = 0.6
 
@@ -159,14 +163,18 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
       return boundCache.get(t)!
     })
     const onsetPairs = (f: ReturnType<typeof findOnsets>) => f.flatMap((o, i) => (o.onsetS === null ? [] : [{ drillS: notes[i]!.startS, takeS: o.onsetS }]))
-    let alignment = alignHolds(trackOf, notes, known ? { map: known, withinChordS: CHORD_MAP_TOLERANCE_S } : {})
-    let found = findOnsets(trackOf, alignment.placements, notes, bounds)
+    let alignment = alignHolds(trackOf, notes, known ? { map: known, withinChordS: CHORD_MAP_TOLERANCE_S, unvoicedCost: CHORD_UNVOICED_COST } : {})
+    // Under a chord map the placed start is already within its chord: before it, the part's
+    // series may be another part's same note in the chord before (the tuba's G2 before the
+    // trombone's), not its onset.
+    const lookBack = known ? 0 : 0.15
+    let found = findOnsets(trackOf, alignment.placements, notes, bounds, lookBack)
     let map: TimeMap = { offsetS: alignment.offsetS, timeScale: alignment.timeScale }
     // A map known from the whole chord's onsets is kept: the part's own onsets are fewer.
     const refit = known ? null : fitTimeMap(onsetPairs(found))
     if (refit) {
       alignment = alignHolds(trackOf, notes, { map: refit })
-      found = findOnsets(trackOf, alignment.placements, notes, bounds)
+      found = findOnsets(trackOf, alignment.placements, notes, bounds, lookBack)
       map = fitTimeMap(onsetPairs(found)) ?? refit
     }
     // A repeated note with no re-articulation (a tie, legato singing): split at the drill's chord

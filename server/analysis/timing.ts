@@ -24,11 +24,11 @@ const near = (hz: number, refHz: number) => {
  * Onset and release of every placed hold from its coarse track: the first and last frames near
  * the note heard there (the median pitch of the placed frames, which for a wrong note is not
  * the expected one) at ≥ 30 % of the hold's median level, searched from
- * 0.15 s before to 0.3 s after the placed start (and to 0.25 s after the placed end). A hold that
+ * `lookBackS` (0.15 s) before to 0.3 s after the placed start (and to 0.25 s after the placed end). A hold that
  * directly follows the same note with no boundary (pitch change, energy dip) between them was
  * not re-articulated: its start is only the chord boundary.
  */
-export function findOnsets (tracks: CoarseTrack[], placements: HoldPlacement[], holds: ExpectedHold[], bounds: Uint8Array[]): Found[] {
+export function findOnsets (tracks: CoarseTrack[], placements: HoldPlacement[], holds: ExpectedHold[], bounds: Uint8Array[], lookBackS = 0.15): Found[] {
   return placements.map((p, i) => {
     if (!p.found) return { onsetS: null, releaseS: null, articulated: false }
     const tr = tracks[i]!
@@ -47,7 +47,7 @@ export function findOnsets (tracks: CoarseTrack[], placements: HoldPlacement[], 
     const thr = 0.3 * lv[lv.length >> 1]!
     const ok = (j: number) => tr.voiced[j] === 1 && near(tr.hz[j]!, refHz) && tr.energy[j]! >= thr
     let on = -1
-    let a = Math.max(0, p.frameStart - Math.round(0.15 / hop))
+    let a = Math.max(0, p.frameStart - Math.round(lookBackS / hop))
     const b = Math.min(F - 1, p.frameStart + Math.round(0.3 / hop))
     // A repeated note placed right after the same note: the frames before its start are the
     // previous note's tail, so the search starts after the lowest level near the start (the
