@@ -33,6 +33,14 @@ export interface AlignOptions {
   maxScale?: number
   /** A global map already known (from the holds' onsets): step 1 is skipped. */
   map?: { offsetS: number, timeScale: number }
+  /** With a map known from the whole chord's onsets: each hold stays inside its own chord under
+   *  the map, give or take this many seconds (it may start late or end early, never run onto a
+   *  neighbouring chord). */
+  withinChordS?: number
+  /** Cost of a frame with no pitch inside a hold (default COST_UNVOICED). A part picked out of a
+   *  sounding chord shows its series only where it stands out of the other parts: a frame
+   *  without it there is no silence. */
+  unvoicedCost?: number
 }
 
 // Frame costs relative to "between holds" (which costs 0); negative = evidence for the hold.
@@ -169,7 +177,7 @@ export function alignHolds (tracks: CoarseTrack[], holds: ExpectedHold[], opts: 
   const keyOf = (hz: number) => hz.toFixed(6)
   const costPrefix = new Map<string, Float64Array>()
   const gainPrefix = new Map<string, Float64Array>()
-  const costTable = [COST_MATCH, COST_OCTAVE, COST_NEAR, COST_FAR, COST_UNVOICED]
+  const costTable = [COST_MATCH, COST_OCTAVE, COST_NEAR, COST_FAR, opts.unvoicedCost ?? COST_UNVOICED]
   const gainTable = [GAIN_MATCH, GAIN_OCTAVE, GAIN_NEAR, GAIN_FAR, 0]
   holds.forEach((h, i) => {
     const track = tracks[i]!
@@ -273,12 +281,13 @@ export function alignHolds (tracks: CoarseTrack[], holds: ExpectedHold[], opts: 
     const nExp = Math.max(1, m.b - m.a)
     // Room to move: enough for one chord skipped or doubled, at least 2 s.
     const slack = Math.max(2 * ub, 1.1 * nExp)
-    const aMin = Math.max(0, Math.floor(m.a - slack))
-    const aMax = Math.min(U, Math.ceil(m.a + slack))
     const Lmin = Math.max(2, Math.round(Math.max(0.12 * ub, 0.25 * nExp)))
     const Lmax = Math.max(Lmin, Math.round(1.6 * nExp + 0.5 * ub))
+    const tol = opts.withinChordS !== undefined && opts.map ? opts.withinChordS * ub : null
+    const aMin = Math.max(0, Math.floor(tol === null ? m.a - slack : m.a - tol))
+    const aMax = Math.min(U, Math.ceil(tol === null ? m.a + slack : m.b + tol - Lmin))
     const lo = Math.min(U, aMin + Lmin)
-    const hi = Math.min(U, aMax + Lmax)
+    const hi = Math.min(U, aMax + Lmax, tol === null ? U : Math.floor(m.b + tol))
     const bandLen = Math.max(0, hi - lo + 1)
     const g = new Float64Array(bandLen)
     const choice = new Int32Array(bandLen)

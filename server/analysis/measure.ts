@@ -38,7 +38,11 @@
 //   kept only when it measures clearly more holds than the free pass, and more than the free pass
 //   measured plus the wrong notes it heard at one distance (a take in a wrong key or octave stays
 //   wrong notes; noise stays no_holds). Its time map comes from the whole chord's onsets
-//   (timing.ts mapFromOnsets: every part moves at a chord change), not from the part's own few.
+//   (timing.ts mapFromOnsets: every part moves at a chord change, and the take's sound extent
+//   rules out a map one chord late or early), not from the part's own few; under it each hold
+//   stays on its own chord (±0.15 s: never shifted onto a neighbour, a repeated note is split
+//   there), a frame where its series does not stand out counts little against it (0.2, not 0.8),
+//   and it is measured from its own onset when one was found (before it sounds the chord before).
 //   Its holds are refined with long frames (16 periods), no
 //   octave guard and no voice spread (other parts' partials); a hold that does not show its own
 //   fundamental is not this part's note (no_pitch); the centre is the median of
@@ -94,6 +98,12 @@ const doubledBelow = new WeakSet<MeasuredHold>()
 const DOUBLED_SUB_NOISE = 100
 /** …and holds at least this share of the note's own fundamental (doubled 0.13–0.62, others below 0.01). */
 const DOUBLED_SUB_FUNDAMENTAL = 0.05
+/** Under a map from the whole chord's onsets a hold stays on its own chord, give or take this
+ *  much (the onsets found lie up to a few frames from the chord starts). */
+const CHORD_MAP_TOLERANCE_S = 0.15
+/** …and a frame where its series does not stand out of the chord weighs little against it
+ *  (alone, a frame with no pitch inside a hold costs 0.8 of a matching frame's gain: align.ts). */
+const CHORD_UNVOICED_COST = 0.2
 /** Share of the holds below which the free pitch search is taken to follow another part of a sounding chord. */
 const CHORD_TRY_SHARE = 0.6
 
@@ -153,14 +163,18 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
       return boundCache.get(t)!
     })
     const onsetPairs = (f: ReturnType<typeof findOnsets>) => f.flatMap((o, i) => (o.onsetS === null ? [] : [{ drillS: notes[i]!.startS, takeS: o.onsetS }]))
-    let alignment = alignHolds(trackOf, notes, known ? { map: known } : {})
-    let found = findOnsets(trackOf, alignment.placements, notes, bounds)
+    let alignment = alignHolds(trackOf, notes, known ? { map: known, withinChordS: CHORD_MAP_TOLERANCE_S, unvoicedCost: CHORD_UNVOICED_COST } : {})
+    // Under a chord map the placed start is already within its chord: before it, the part's
+    // series may be another part's same note in the chord before (the tuba's G2 before the
+    // trombone's), not its onset.
+    const lookBack = known ? 0 : 0.15
+    let found = findOnsets(trackOf, alignment.placements, notes, bounds, lookBack)
     let map: TimeMap = { offsetS: alignment.offsetS, timeScale: alignment.timeScale }
     // A map known from the whole chord's onsets is kept: the part's own onsets are fewer.
     const refit = known ? null : fitTimeMap(onsetPairs(found))
     if (refit) {
       alignment = alignHolds(trackOf, notes, { map: refit })
-      found = findOnsets(trackOf, alignment.placements, notes, bounds)
+      found = findOnsets(trackOf, alignment.placements, notes, bounds, lookBack)
       map = fitTimeMap(onsetPairs(found)) ?? refit
     }
     // A repeated note with no re-articulation (a tie, legato singing): split at the drill's chord
@@ -185,7 +199,10 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
       if (!p.found) {
         m = missing(pyr, h, p.startS, p.endS, trackOf[i]!, used, durationS, expectedDur, clipWarn, opts.trace !== false)
       } else {
-        m = measureHold(pyr, trackOf[i]!, h, p.startS, p.endS, expectedDur, clipWarn, opts.trace !== false, inChord)
+        // In a chord the frames before the note's own onset are the end of the chord before
+        // (a repeated note's tail, other parts' releases): the hold is measured from its onset.
+        const from = inChord && found[i]!.onsetS !== null ? Math.max(p.startS, Math.min(found[i]!.onsetS!, p.endS - 0.3)) : p.startS
+        m = measureHold(pyr, trackOf[i]!, h, from, p.endS, expectedDur, clipWarn, opts.trace !== false, inChord)
         m.timing = holdTiming(found[i]!, h, map)
       }
       holds.push(m)
@@ -225,7 +242,9 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
       const bf = boundaryFrames(t)
       for (let j = 0; j < bf.length; j++) if (bf[j]) onsets.push(t.times[j]! - t.hopS / 2)
     }
-    const known = mapFromOnsets(onsets, notes.map(h => h.startS))
+    // Chord starts include those where this part rests (the other parts still move there).
+    const chords = expected.filter(h => Number.isFinite(h.startS) && Number.isFinite(h.endS))
+    const known = mapFromOnsets(onsets, chords.map(h => h.startS), { sound: soundExtent(bandTracks), drillEndS: Math.max(...chords.map(h => h.endS)) })
     const chord = pass(chordOf, true, f => progress(0.9 + 0.1 * f), known)
     const n = measured(chord.holds) + chord.holds.filter(hh => doubledBelow.has(hh)).length
     if (n >= Math.max(measured(holds) + 2, 1.5 * measured(holds)) && n > measured(holds) + consistentWrong(holds)) {
@@ -252,6 +271,18 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
     warnings,
     engine: ENGINE_VERSION,
   }
+}
+
+// First and last voiced frame of any band (the tracks share their frame times).
+function soundExtent (tracks: CoarseTrack[]): { startS: number, endS: number } | undefined {
+  const t = tracks[0]!
+  const F = Math.min(...tracks.map(tr => tr.voiced.length))
+  const voiced = (j: number) => tracks.some(tr => tr.voiced[j] === 1)
+  let a = 0
+  while (a < F && !voiced(a)) a++
+  let z = F - 1
+  while (z > a && !voiced(z)) z--
+  return a < F ? { startS: t.times[a]! - t.hopS / 2, endS: t.times[z]! + t.hopS / 2 } : undefined
 }
 
 // Peak, samples at full scale and mean of a signal, in one pass.

@@ -24,11 +24,11 @@ const near = (hz: number, refHz: number) => {
  * Onset and release of every placed hold from its coarse track: the first and last frames near
  * the note heard there (the median pitch of the placed frames, which for a wrong note is not
  * the expected one) at ≥ 30 % of the hold's median level, searched from
- * 0.15 s before to 0.3 s after the placed start (and to 0.25 s after the placed end). A hold that
+ * `lookBackS` (0.15 s) before to 0.3 s after the placed start (and to 0.25 s after the placed end). A hold that
  * directly follows the same note with no boundary (pitch change, energy dip) between them was
  * not re-articulated: its start is only the chord boundary.
  */
-export function findOnsets (tracks: CoarseTrack[], placements: HoldPlacement[], holds: ExpectedHold[], bounds: Uint8Array[]): Found[] {
+export function findOnsets (tracks: CoarseTrack[], placements: HoldPlacement[], holds: ExpectedHold[], bounds: Uint8Array[], lookBackS = 0.15): Found[] {
   return placements.map((p, i) => {
     if (!p.found) return { onsetS: null, releaseS: null, articulated: false }
     const tr = tracks[i]!
@@ -47,7 +47,7 @@ export function findOnsets (tracks: CoarseTrack[], placements: HoldPlacement[], 
     const thr = 0.3 * lv[lv.length >> 1]!
     const ok = (j: number) => tr.voiced[j] === 1 && near(tr.hz[j]!, refHz) && tr.energy[j]! >= thr
     let on = -1
-    let a = Math.max(0, p.frameStart - Math.round(0.15 / hop))
+    let a = Math.max(0, p.frameStart - Math.round(lookBackS / hop))
     const b = Math.min(F - 1, p.frameStart + Math.round(0.3 / hop))
     // A repeated note placed right after the same note: the frames before its start are the
     // previous note's tail, so the search starts after the lowest level near the start (the
@@ -137,30 +137,81 @@ function round3 (v: number): number {
   return Math.round(v * 1000) / 1000
 }
 
+/** Where the take sounds at all: its first and last sounding frames. */
+export interface SoundExtent { startS: number, endS: number }
+
+export interface ChordMapOptions {
+  /** Where the take sounds (a chord start is an onset from silence, and nothing starts once it ends). */
+  sound?: SoundExtent
+  /** End of the drill's last chord. */
+  drillEndS?: number
+}
+
 /**
  * The take's map from where it changes at all (the whole chord's onsets: every part moves at a
  * chord change) against the drill's chord starts: the offset and tempo (0.8–1.25 of the drill's,
- * in 0.5 % steps) that put the most chord starts within 0.1 s of an onset, refined by a robust fit
- * to those pairs. Null when fewer than half the chords (and fewer than three) meet an onset.
+ * in 0.5 % steps) that best explain the onsets, refined by a robust fit to the chord starts that
+ * meet one. A chord start within 0.1 s of an onset scores 0.7–1 (less the farther it lands), so
+ * among maps meeting as many onsets the one with the smaller misses wins. When chords are of
+ * equal length a map one chord late or early can meet as many onsets (an extra onset, or one at
+ * the final release, fills the gap), so with the take's sound extent known the score also loses
+ * one per chord length of drill mapped where the take is silent (before its first sound or after
+ * its last) and a half per chord length of sound outside the drill (more than 0.25 s before the
+ * first chord, more than 1 s of ring after the last); an onset with less than 40 % of the
+ * shortest chord still to sound after it is no chord start, and the take's first sound is one.
+ * Ties go to the tempo nearest the drill's. Null when fewer than half the chords (and fewer than
+ * three) meet an onset.
  */
-export function mapFromOnsets (onsetsS: number[], chordStartsS: number[]): TimeMap | null {
-  const on = [...onsetsS].sort((a, b) => a - b)
+export function mapFromOnsets (onsetsS: number[], chordStartsS: number[], opts: ChordMapOptions = {}): TimeMap | null {
   const starts = [...new Set(chordStartsS)].sort((a, b) => a - b)
-  if (on.length < 3 || starts.length < 3) return null
+  if (starts.length < 3) return null
+  const sound = opts.sound
+  const endD = opts.drillEndS !== undefined && opts.drillEndS > starts[starts.length - 1]! ? opts.drillEndS : null
+  let shortest = Infinity
+  for (let k = 1; k < starts.length; k++) shortest = Math.min(shortest, starts[k]! - starts[k - 1]!)
+  if (endD !== null) shortest = Math.min(shortest, endD - starts[starts.length - 1]!)
+  let on = [...onsetsS].filter(Number.isFinite)
+  if (sound) {
+    // At the slowest tempo searched, a chord start has at least 40 % of the shortest chord to run.
+    const tail = 0.4 * 0.8 * shortest
+    on = on.filter(t => t < sound.endS - tail)
+    if (!on.some(t => Math.abs(t - sound.startS) <= 0.1)) on.push(sound.startS)
+  }
+  on.sort((a, b) => a - b)
+  if (on.length < 3) return null
   const nearest = (t: number) => {
     let lo = 0
     let hi = on.length - 1
     while (hi - lo > 1) { const mid = (lo + hi) >> 1; if (on[mid]! < t) lo = mid; else hi = mid }
     return Math.abs(on[lo]! - t) < Math.abs(on[hi]! - t) ? on[lo]! : on[hi]!
   }
-  let best = { hits: 0, o: 0, s: 1 }
+  const lenD = endD !== null ? (endD - starts[0]!) / starts.length : (starts[starts.length - 1]! - starts[0]!) / (starts.length - 1)
+  // One per chord length of drill where the take is silent, a half per chord length of sound
+  // outside the drill (sampled and real notes ring on after the last release).
+  const edge = (o: number, s: number) => {
+    if (!sound) return 0
+    const first = o + s * starts[0]!
+    let pen = Math.max(0, sound.startS - 0.15 - first) + 0.5 * Math.max(0, first - sound.startS - 0.25)
+    if (endD !== null) {
+      const last = o + s * endD
+      pen += Math.max(0, last - sound.endS - 0.3) + 0.5 * Math.max(0, sound.endS - last - 1)
+    }
+    return pen / (s * lenD)
+  }
+  let best = { v: -Infinity, hits: 0, o: 0, s: 1 }
   for (let s = 0.8; s <= 1.25 + 1e-9; s *= 1.005) {
     for (const t of on) {
       for (const d of starts) {
         const o = t - s * d
         let hits = 0
-        for (const d2 of starts) if (Math.abs(nearest(o + s * d2) - (o + s * d2)) <= 0.1) hits++
-        if (hits > best.hits || (hits === best.hits && Math.abs(Math.log(s)) < Math.abs(Math.log(best.s)))) best = { hits, o, s }
+        let v = 0
+        for (const d2 of starts) {
+          const m = o + s * d2
+          const r = Math.abs(nearest(m) - m) / 0.1
+          if (r <= 1) { hits++; v += 1 - 0.3 * r * r }
+        }
+        v -= edge(o, s)
+        if (v > best.v + 1e-9 || (Math.abs(v - best.v) <= 1e-9 && Math.abs(Math.log(s)) < Math.abs(Math.log(best.s)))) best = { v, hits, o, s }
       }
     }
   }

@@ -87,6 +87,14 @@ describe('one part inside a sounding brass quartet', async () => {
     }
   })
 
+  it('maps the take to the drill within 1 % of its tempo and not a chord late (six chords of equal length)', () => {
+    // Rendered in tempo (80 bpm, the drill's) with the first chord 1.02 s in (truth.json, take
+    // quartet-horn, hold 0 onS). Every chord is 1.5 s long, so a map one chord late meets as
+    // many onsets once the final release adds one: the take's sound extent rules it out.
+    expect(Math.abs(m.timeScale - 1)).toBeLessThan(0.01)
+    expect(Math.abs(m.offsetS - holds[0]!.onS)).toBeLessThan(0.15)
+  })
+
   it('a take of one instrument alone is not taken for a chord', async () => {
     const alone = await run('trumpet-wrong-tie')
     expect(alone.m.warnings.map(w => w.code)).not.toContain('whole_chord')
@@ -106,6 +114,52 @@ describe('the trombone inside a sounding brass quartet', async () => {
       expect(h.reasonCode, `hold ${h.index}`).not.toBe('wrong_note')
       expect(h.confidence, `hold ${h.index}`).toBeLessThan(0.8)
     }
+  })
+
+  it('maps the take within 1 % of the drill\'s tempo and keeps every hold on its own chord', () => {
+    // Rendered in tempo with the first chord 0.91 s in (truth.json, take quartet-trombone, hold 0 onS).
+    expect(Math.abs(m.timeScale - 1)).toBeLessThan(0.01)
+    expect(Math.abs(m.offsetS - holds[0]!.onS)).toBeLessThan(0.15)
+    // No hold is shifted onto another chord: each lies between its own chord's onset and the
+    // next one's (the last G2 re-articulated 40 ms after the one before, truth.json onS/offS),
+    // give or take 0.2 s (a fifth of a chord: the map's own error and the engine's margin).
+    for (const [i, t] of holds.entries()) {
+      const h = m.holds[i]!
+      expect(h.startS, `hold ${i}`).toBeGreaterThanOrEqual(t.onS - 0.2)
+      expect(h.endS, `hold ${i}`).toBeLessThanOrEqual((holds[i + 1]?.onS ?? t.offS) + 0.2)
+    }
+  })
+
+  it('measures every hold no other part doubles at the unison or an octave below within 1 ¢ of the truth (the trombone rendered alone)', () => {
+    // Holds 0, 1, 4, 5 (truth.json, take quartet-trombone, parts): A2 and B2 under the horn's
+    // sixth, and the two G2s over the tuba's C2 (re-articulated: each measured on its own chord).
+    const clear = holds.filter((t, i) => tuba.notes[i]! !== t.midi && tuba.notes[i]! !== t.midi - 12)
+    expect(clear.map(t => t.index)).toEqual([0, 1, 4, 5])
+    for (const t of clear) {
+      const h = m.holds[t.index]!
+      expect(h.reasonCode, `hold ${t.index}`).toBeNull()
+      expect(Math.abs(cents(h.detectedHz!, t.truthHz)), `hold ${t.index}`).toBeLessThan(1)
+    }
+  })
+
+  it('the G2 the tuba sounds at the unison is not claimed: within 4 ¢ and at confidence below 0.2', () => {
+    // Chord 3: trombone and tuba both on G2 (truth.json, take quartet-trombone, parts Tbn and Tuba);
+    // one take cannot tell the two apart, so the hold must say it is unsure.
+    expect(holds[2]!.midi).toBe(tuba.notes[2]!)
+    const h = m.holds[2]!
+    expect(h.reasonCode).toBeNull()
+    expect(Math.abs(cents(h.detectedHz!, holds[2]!.truthHz))).toBeLessThan(4)
+    expect(h.confidence).toBeLessThan(0.2)
+  })
+
+  it('the last G2 is measured on its own chord, never over the chord before it', () => {
+    // Chords 5 and 6 repeat G2, re-articulated (truth.json onS 7.65 and 9.91, offS 9.87): the
+    // last hold starts at its own chord and ends with it, and its steady part lies inside the note.
+    const h = m.holds[5]!
+    expect(h.startS).toBeGreaterThan(holds[4]!.offS - 0.15)
+    expect(h.steadyStartS!).toBeGreaterThanOrEqual(holds[5]!.onS)
+    expect(h.steadyEndS!).toBeLessThanOrEqual(holds[5]!.offS)
+    expect(Math.abs(cents(h.detectedHz!, holds[5]!.truthHz))).toBeLessThan(1)
   })
 
   it('says the A2 the tuba doubles at A1 cannot be told apart, and measures nothing there', () => {

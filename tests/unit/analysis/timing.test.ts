@@ -37,6 +37,29 @@ describe('mapFromOnsets (a whole chord\'s onsets against the drill\'s chord star
     expect(Math.abs(m.timeScale - 1.04)).toBeLessThan(0.01)
     expect(Math.abs(m.offsetS - 1.2)).toBeLessThan(0.06)
   })
+  // Six chords of equal length (1.5 s on the drill, ending at 9 s), as in the quartet fixtures:
+  // a map shifted by one whole chord meets as many onsets once an onset at the final release (or
+  // an extra one) fills the gap, so what decides is where the take sounds at all.
+  const equal = [0, 1.5, 3, 4.5, 6, 7.5]
+  const jitter = [0.02, -0.03, 0.01, 0.03, -0.02, 0.02]
+  const playedAt = (o: number, k: number) => equal.map((d, i) => o + k * d + jitter[i]!)
+  it.each([1, 0.9, 1.12])('six equal chords at tempo ×%s, the first from silence (no onset) and an onset at the final release: not one chord late', (k) => {
+    const o = 1.0
+    const onsets = playedAt(o, k).slice(1)
+    onsets.push(o + k * 9 + 0.05) // the release (the other parts ring a little longer)
+    const m = mapFromOnsets(onsets, equal, { sound: { startS: o + 0.01, endS: o + k * 9 + 0.4 }, drillEndS: 9 })!
+    // In tempo within 1 % (the drill's tempo scaled by k), on the first chord within 0.06 s.
+    expect(Math.abs(m.timeScale / k - 1)).toBeLessThan(0.01)
+    expect(Math.abs(m.offsetS - o)).toBeLessThan(0.06)
+  })
+  it('six equal chords: a missing chord onset and an extra onset half-way through another do not tip it', () => {
+    const o = 0.7
+    const onsets = playedAt(o, 1).filter((_, i) => i !== 3)
+    onsets.push(o + 6.75, o + 9.02)
+    const m = mapFromOnsets(onsets, equal, { sound: { startS: o, endS: o + 9.35 }, drillEndS: 9 })!
+    expect(Math.abs(m.timeScale - 1)).toBeLessThan(0.01)
+    expect(Math.abs(m.offsetS - o)).toBeLessThan(0.06)
+  })
   it('gives nothing when the onsets do not fit the chords', () => {
     expect(mapFromOnsets([0.3, 5.1], starts)).toBeNull()
   })
