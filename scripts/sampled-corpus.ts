@@ -554,6 +554,23 @@ export function fixtureSpecs (): TakeSpec[] {
       repeats: 'rearticulate', gapS: 0.1, rate: 16000,
     },
     {
+      // Four singers on one part (voice oohs): each detuned, with its own vibrato and its own slow
+      // wander, each starting a few milliseconds apart as a section does.
+      id: 'section-oohs-4', kind: 'section', label: 'Voice oohs (53) ×4 voices, own detune, vibrato, wander and start',
+      tempo: 72, beats: [3, 3, 3, 3, 3], part: 'P',
+      parts: [{
+        name: 'P', notes: [67, 69, 65, 67, 72],
+        voices: [
+          { program: 53, detuneCents: -6, vibrato: { rateHz: 5.1, extentCents: 14, phase: 0.9 }, wander: [{ rateHz: 0.37, cents: 1.2, phase: 0.2 }, { rateHz: 0.83, cents: 0.8, phase: 2.5 }], startS: 0.012 },
+          { program: 53, detuneCents: 5, vibrato: { rateHz: 5.7, extentCents: 22, phase: 3.1 }, wander: [{ rateHz: 0.29, cents: 1.4, phase: 4.0 }, { rateHz: 0.91, cents: 0.6, phase: 1.1 }], startS: 0 },
+          { program: 53, detuneCents: -1, vibrato: { rateHz: 6.1, extentCents: 10, phase: 5.0 }, wander: [{ rateHz: 0.41, cents: 0.9, phase: 3.3 }, { rateHz: 1.27, cents: 0.7, phase: 0.4 }], startS: 0.031 },
+          { program: 53, detuneCents: 3, vibrato: { rateHz: 4.8, extentCents: 18, phase: 1.7 }, wander: [{ rateHz: 0.33, cents: 1.1, phase: 5.6 }, { rateHz: 0.77, cents: 1.0, phase: 2.9 }], startS: 0.022 },
+        ],
+      }],
+      offsets: [-4, 7, 2, -9, 5], driftCentsPerMin: 0, leadInS: 0.8, lateS: [0.02, 0.04, 0, 0.03, 0.01],
+      repeats: 'rearticulate', gapS: 0.1, rate: 16000,
+    },
+    {
       id: 'oohs-bass-vibrato', kind: 'voice', label: 'Voice oohs (53), one singer, low line with vibrato ±15 ¢ at 5 Hz',
       tempo: 72, beats, part: 'P', parts: [{ name: 'P', notes: [48, 53, 55, 48, 45, 48], voices: [{ program: 53, detuneCents: 0, vibrato: { rateHz: 5.0, extentCents: 15, phase: 2.0 } }] }],
       offsets: [4, -7, 10, -2, 6, -9], driftCentsPerMin: 0, leadInS: 0.7, lateS: [0.01, 0.04, 0, 0.02, 0.05, 0.03],

@@ -16,7 +16,11 @@ import { cents, equalHz } from './helpers'
 const dir = join(__dirname, '../../fixtures/sampled')
 const truth = JSON.parse(readFileSync(join(dir, 'truth.json'), 'utf8'))
 
-interface Voice { detuneCents: number, vibrato: { rateHz: number, extentCents: number, phase: number } | null }
+interface Voice {
+  detuneCents: number
+  vibrato: { rateHz: number, extentCents: number, phase: number } | null
+  wander?: Array<{ rateHz: number, cents: number, phase: number }>
+}
 interface Hold { index: number, midi: number, onS: number, truthHz: number, steadyStartS: number, steadyEndS: number }
 
 async function run (id: string) {
@@ -41,7 +45,8 @@ function askedSpread (voices: Voice[], a: number, b: number): number {
   let sum = 0
   let n = 0
   for (let t = a; t <= b; t += 0.005) {
-    const c = voices.map(v => v.detuneCents + (v.vibrato ? v.vibrato.extentCents * Math.sin(2 * Math.PI * v.vibrato.rateHz * t + v.vibrato.phase) : 0))
+    const c = voices.map(v => v.detuneCents + (v.vibrato ? v.vibrato.extentCents * Math.sin(2 * Math.PI * v.vibrato.rateHz * t + v.vibrato.phase) : 0) +
+      (v.wander ?? []).reduce((s, w) => s + w.cents * Math.sin(2 * Math.PI * w.rateHz * t + w.phase), 0))
     const mean = c.reduce((s, x) => s + x, 0) / c.length
     sum += c.reduce((s, x) => s + (x - mean) ** 2, 0) / c.length
     n++
@@ -86,6 +91,50 @@ describe('sampled section: five voices on one part (choir aahs)', async () => {
       const asked = askedSpread(voices, t.steadyStartS, t.steadyEndS)
       expect(h.voiceSpreadCents, `hold ${t.index}`).not.toBeNull()
       // Within a factor of 2: the patch's own chorus widens what the five voices were asked for.
+      expect(h.voiceSpreadCents!, `hold ${t.index}`).toBeGreaterThan(asked / 2)
+      expect(h.voiceSpreadCents!, `hold ${t.index}`).toBeLessThan(asked * 2)
+    }
+  })
+})
+
+describe('sampled section: four singers on one part (voice oohs), each starting on their own', async () => {
+  // section-oohs-4: four voices, each detuned (−6…+5 ¢) with its own vibrato (10–22 ¢) and a slow
+  // wander of a cent or two, starting up to 31 ms apart. The truth is aubiopitch on each voice
+  // rendered alone; Praat's autocorrelation pitch on the same solo renders agreed with it to
+  // 0.06 ¢ (median over the five holds) when the fixture was made, so this patch's truth is
+  // settled to well under the tolerance below.
+  const { m, holds, spec } = await run('section-oohs-4')
+
+  it('finds every hold at its onset', () => {
+    expect(Math.abs(m.timeScale - 1)).toBeLessThan(0.01)
+    for (const t of holds) {
+      const h = m.holds.find(x => x.index === t.index)!
+      expect(h.reasonCode, `hold ${t.index}`).toBeNull()
+      expect(Math.abs(h.startS - t.onS), `hold ${t.index}`).toBeLessThan(0.1)
+    }
+  })
+
+  it('measures each centre within 1 ¢ of the mean of the voices (median within 0.6 ¢)', () => {
+    // The target for a section (2–12 voices) is a median within 0.5 ¢ and a p95 within 1.5 ¢ of
+    // the mean of the voices' log-frequencies. Weighed by power, the fundamental of an "oo" carried
+    // the centre and this fixture's first hold came out 2.7 ¢ off; one vote per harmonic heard
+    // brings every hold within 0.8 ¢.
+    const errs = holds.map((t) => {
+      const h = m.holds.find(x => x.index === t.index)!
+      const err = Math.abs(cents(h.detectedHz!, t.truthHz))
+      expect(err, `hold ${t.index}`).toBeLessThan(1)
+      if (err > 1) expect(h.confidence, `hold ${t.index}`).toBeLessThan(0.8)
+      return err
+    }).sort((a, b) => a - b)
+    expect(errs[errs.length >> 1]!).toBeLessThan(0.6)
+  })
+
+  it('tells the voices apart: a spread on every hold, near what was asked', () => {
+    const voices = spec.parts[0].voices as Voice[]
+    for (const t of holds) {
+      const h = m.holds.find(x => x.index === t.index)!
+      const asked = askedSpread(voices, t.steadyStartS, t.steadyEndS)
+      expect(h.voiceSpreadCents, `hold ${t.index}`).not.toBeNull()
       expect(h.voiceSpreadCents!, `hold ${t.index}`).toBeGreaterThan(asked / 2)
       expect(h.voiceSpreadCents!, `hold ${t.index}`).toBeLessThan(asked * 2)
     }
