@@ -247,6 +247,13 @@ export async function sampledTable (dir: string): Promise<string[]> {
     const worst = rows.filter(r => r.take === s.id && r.found).reduce((w, r) => Math.max(w, Math.abs(r.err!)), 0)
     out.push(`  ${s.id.padEnd(13)} tempo ${f(100 * (t.m.timeScale - 1), 2).padStart(6)} %, offset error ${f(t.m.offsetS - s.leadInS, 3).padStart(6)} s, worst |err| ${f(worst, 2)} ¢${drift}`)
   }
+  const only = takeRows.filter(t => t.take.spec.driftCentsPerMin !== 0 && t.take.spec.offsets.every(o => o === 0))
+  if (only.length) {
+    out.push(`Drift on the takes that only drift (target: within 10 % of the fit of the truths): ${only.map((t) => {
+      const off = t.drift !== null && t.truthDrift ? `${f(100 * Math.abs(t.drift - t.truthDrift) / Math.abs(t.truthDrift), 1)} % off` : 'not enough holds'
+      return `${t.take.spec.id} ${t.drift === null ? '—' : f(t.drift)} ± ${f(t.driftSe ?? NaN)} vs ${f(t.truthDrift ?? NaN)} ¢/min, ${off}`
+    }).join('; ')}.`)
+  }
   out.push(`Bend check (FluidSynth, asked → rendered ¢, aubiopitch): ${corpus.bendCheck.map(b => `${b.asked} → ${b.measured}`).join(', ')}`)
   const cal = Object.values(corpus.calibration)
   out.push(`Plain-note calibration (aubiopitch, ${cal.length} program/note pairs): ${f(Math.min(...cal))} to ${f(Math.max(...cal))} ¢ from equal temperament.`)

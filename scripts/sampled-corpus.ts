@@ -239,6 +239,27 @@ export function corpusSpecs (): TakeSpec[] {
   sung('sung-T6', 'Voice oohs (53) ×6 voices, tenor line, own starts and wander, drift −30 ¢/min', 53, LINES.T!, 6, -30)
   sung('sung-A8', 'Choir aahs (52) ×8 voices, alto line, own starts and wander', 52, LINES.A!, 8)
   sung('sung-B12', 'Voice oohs (53) ×12 voices, bass line, own starts and wander', 53, LINES.B!, 12)
+  // Takes that only drift (every chord on its target, the pitch sagging or rising steadily): with
+  // offsets of ±12–15 ¢ per chord, as above, the drift is not separable from them over twelve holds,
+  // and even the fit of the truths is uncertain.
+  const drifting = (id: string, kind: TakeKind, label: string, program: number, line: number[], drift: number, voices = 1, vibrato: VoiceSpec['vibrato'] = null) => {
+    specs.push({
+      id, kind, label, tempo: 60, beats: BEATS, part: 'P',
+      parts: [{
+        name: 'P', notes: line, voices: Array.from({ length: voices }, (_, i) => ({
+          program, detuneCents: voices > 1 ? Math.round(uni2(-6, 6)) : 0,
+          vibrato: voices > 1 ? { rateHz: Math.round(uni2(4.6, 6.4) * 100) / 100, extentCents: Math.round(uni2(8, 24)), phase: uni2(0, 2 * Math.PI) } : vibrato,
+          ...(voices > 1 ? { startS: i === 0 ? 0 : Math.round(uni2(0, 0.04) * 1000) / 1000 } : {}),
+        })),
+      }],
+      offsets: line.map(() => 0), driftCentsPerMin: drift, leadInS: Math.round(uni2(0.6, 2) * 100) / 100,
+      lateS: line.map(() => Math.round(uni2(0, 0.05) * 1000) / 1000), repeats: 'rearticulate', gapS: 0.1,
+    })
+  }
+  drifting('drift-tbn', 'instrument', 'Trombone (57), tenor line −1 oct, drift −30 ¢/min only', 57, shift(LINES.T!, -12), -30)
+  drifting('drift-cl', 'instrument', 'Clarinet (71), alto line, drift +20 ¢/min only', 71, LINES.A!, 20)
+  drifting('drift-oohs', 'voice', 'Voice oohs (53), soprano line, vibrato ±12 ¢, drift −24 ¢/min only', 53, LINES.S!, -24, 1, { rateHz: 5.4, extentCents: 12, phase: 0.7 })
+  drifting('drift-sung4', 'section', 'Voice oohs (53) ×4 voices, alto line, drift −30 ¢/min only', 53, LINES.A!, -30, 4)
   return specs
 }
 
