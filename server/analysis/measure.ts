@@ -22,8 +22,9 @@
 //   constant at the window centre is the hold centre (= mean log-frequency of the steady part).
 // - Several voices (a section recorded together): when the harmonics' spread about their moving
 //   centre is 8 ¢ or more (one voice shows a few cents at most) and the pitch track wanders by
-//   2.6 ¢ or more once vibrato is removed (the beats hand it from voice to voice), the centre is the harmonics'
-//   power-weighted frequency over the steady part (voices.ts), which beats do not scramble, its
+//   2.6 ¢ or more once vibrato is removed (the beats hand it from voice to voice), the centre is the mean of the
+//   harmonics' power-weighted frequencies over the steady part, one vote per harmonic heard
+//   (voices.ts), which beats do not scramble, its
 //   SE comes from four block centres and the harmonics' disagreement, and the hold reports the
 //   voices' spread (voiceSpreadCents). One voice: voiceSpreadCents null.
 // - SE of the centre: the larger of the four-block SE above and the harmonics' disagreement
@@ -830,8 +831,9 @@ function measureSteady (tr: RefinedTrack, h: ExpectedHold, startS: number, endS:
   const steadyStartS = bins.t[lo]! - BIN_S / 2
   const steadyEndS = bins.t[hi]! + BIN_S / 2
   // Several voices on the part (their spread about the moving centre is far above what one voice
-  // shows): the centre is the harmonics' power-weighted frequency, the track's own spread (beats,
-  // not unsteadiness) no longer counts against the confidence, and the voices' spread is reported.
+  // shows): the centre is the mean of the harmonics' power-weighted frequencies, one vote per
+  // harmonic heard (voices.ts), the track's own spread (beats, not unsteadiness) no longer counts
+  // against the confidence, and the voices' spread is reported.
   let centreOut = centre
   let seOut = se
   let steadiness = 1 / (1 + (spread / 15) ** 2)

@@ -49,7 +49,7 @@ export interface MeasuredHold {
   steadyStartS: number | null
   steadyEndS: number | null
   /** Standard error of the centre, cents (approximate: from four block means of the slow residual,
-   *  or, for several voices, of the harmonics' power-weighted centre). */
+   *  or, for several voices, of the harmonics' centre, one vote per harmonic heard). */
   centreErrorCents: number | null
   /** Several voices on the part (a section recorded together): the spread of their pitches about
    *  their centre (RMS, cents: detuning and the vibrato they do not share); null for one voice. */

@@ -10,6 +10,13 @@
 // frequencies — the cross terms of the beats add the same share to both sums and cancel. Within
 // a few cents, the mean of the frequencies is the mean of the log-frequencies to 0.01 ¢.
 //
+// They cancel only over many beats. Over a held chord (a second or two) the voices' spectra
+// overlap (vibrato spreads each over several hertz), so each harmonic's centroid is off the
+// voices' mean by a chance amount of a cent or more that its power does not shrink and that falls
+// as the harmonic beats faster (k times the fundamental's rate). A sung "oo" has nearly all its
+// power in the fundamental: weighed by power, the centre is the fundamental's alone. So the
+// harmonics heard are averaged one vote each.
+//
 // The spread of the bundle about its moving centre gives the spread between the voices: the
 // power-weighted mean square of the phase advance about the local centre, over a lag τ, is
 // 2(1 − Σ wᵢ cos 2πΔfᵢτ); for a spread σ of Gaussian shape that is 2(1 − e^(−2π²σ²τ²)).
