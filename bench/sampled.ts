@@ -10,7 +10,7 @@ import { decodeAudio } from '../server/analysis/decode'
 import { fitDrift } from '../server/analysis/drift'
 import { measureTake } from '../server/analysis/measure'
 import type { ExpectedHold, Measurement } from '../server/analysis/types'
-import { buildSampledCorpus, missingTool } from '../scripts/sampled-corpus'
+import { aubioTracks, buildSampledCorpus, logMeanOf, missingTool } from '../scripts/sampled-corpus'
 import type { RenderedTake, TakeKind } from '../scripts/sampled-corpus'
 
 const cents = (a: number, b: number) => 1200 * Math.log2(a / b)
@@ -101,6 +101,29 @@ function soloPraatTruths (take: RenderedTake, work: string): Array<number | null
   })
 }
 
+/**
+ * aubiopitch on each voice rendered alone over the steady window Driftline chose (cut, per voice,
+ * to whole cycles of that voice's vibrato), averaged over the voices: a sampled voice wanders by
+ * itself, so a hold's pitch depends on the stretch it is taken over, and this tells the
+ * measurement apart from the choice of window. Null where a voice gives too few frames.
+ */
+function ownWindowTruth (take: RenderedTake, tracks: Array<Array<() => Array<[number, number]>>>, a: number, b: number, nearHz: number): number | null {
+  const voices = take.spec.parts.find(p => p.name === take.spec.part)!.voices
+  let sum = 0
+  for (const [vi, v] of voices.entries()) {
+    let wa = a
+    let wb = b
+    if (v.vibrato) {
+      const keep = Math.floor((b - a) * v.vibrato.rateHz) / v.vibrato.rateHz
+      if (keep <= 0) return null
+      wa = (a + b) / 2 - keep / 2
+      wb = wa + keep
+    }
+    try { sum += Math.log2(logMeanOf(tracks[vi]!, wa, wb, nearHz)) } catch { return null }
+  }
+  return Math.pow(2, sum / voices.length)
+}
+
 interface HoldRow {
   kind: TakeKind
   take: string
@@ -111,6 +134,8 @@ interface HoldRow {
   praatErr: number | null
   /** Praat on each voice rendered alone against aubiopitch's truth, cents (the truth's own uncertainty). */
   truthAgreement: number | null
+  /** Driftline against aubiopitch on the voices alone over Driftline's own steady window, cents. */
+  ownWindowErr: number | null
   onsetErr: number | null
   confidence: number
   tied: boolean
@@ -142,6 +167,7 @@ export async function sampledTable (dir: string): Promise<string[]> {
       const m = measureTake(audio, expected, { trace: false })
       const praat = praatMeans(take.file, take.holds.map(h => ({ a: h.steadyStartS, b: h.steadyEndS, hz: h.truthHz })), work)
       const soloPraat = soloPraatTruths(take, work)
+      const soloTracks = take.spec.parts.find(p => p.name === take.spec.part)!.voices.map((_, vi) => aubioTracks(take.file.replace(/\.wav$/, `.solo${vi}.wav`)))
       take.holds.forEach((t, i) => {
         const held = m.holds.find(h => h.index === t.index)!
         const found = held.detectedHz !== null && held.reasonCode === null
@@ -150,6 +176,9 @@ export async function sampledTable (dir: string): Promise<string[]> {
           err: found ? cents(held.detectedHz!, t.truthHz) : null,
           praatErr: praat[i] ? cents(praat[i]!, t.truthHz) : null,
           truthAgreement: soloPraat[i] ? cents(soloPraat[i]!, t.truthHz) : null,
+          ownWindowErr: found && held.steadyStartS !== null && held.steadyEndS !== null && held.steadyStartS !== undefined && held.steadyEndS !== undefined
+            ? ((ref) => (ref ? cents(held.detectedHz!, ref) : null))(ownWindowTruth(take, soloTracks, held.steadyStartS, held.steadyEndS, t.truthHz))
+            : null,
           onsetErr: found ? held.startS - t.onS : null,
           confidence: held.confidence, tied: t.tied,
           spread: found ? held.voiceSpreadCents ?? null : null, spreadAsked: askedVoiceSpread(take, t),
@@ -181,7 +210,7 @@ export async function sampledTable (dir: string): Promise<string[]> {
     ['sections (3–12 voices)', r => r.kind === 'section', '≤ 0.5', '≤ 1.5'],
     ['whole chords (quartet, one part)', r => r.kind === 'chord', '—', '—'],
   ]
-  const table: string[][] = [['group (holds)', 'found', 'onset ≤ 0.1 s', 'median / p95 |err| ¢ (target)', 'Driftline', 'Praat (given windows)', `truths agree ≤ ${TRUTH_AGREED_CENTS} ¢`, 'Driftline there', 'Praat there']]
+  const table: string[][] = [['group (holds)', 'found', 'onset ≤ 0.1 s', 'median / p95 |err| ¢ (target)', 'Driftline', 'Praat (given windows)', `truths agree ≤ ${TRUTH_AGREED_CENTS} ¢`, 'Driftline there', 'Praat there', 'Driftline there, truth over its own window']]
   for (const [name, sel, tMed, tP95] of groups) {
     const g = rows.filter(sel)
     if (!g.length) continue
@@ -197,6 +226,7 @@ export async function sampledTable (dir: string): Promise<string[]> {
       `${f(q(e, 0.5), 3)} / ${f(q(e, 0.95), 3)}`,
       `${f(q(pe, 0.5), 3)} / ${f(q(pe, 0.95), 3)} (${pe.length})`,
       ...agreedCells(g),
+      ((w: number[]) => `${f(q(w, 0.5), 3)} / ${f(q(w, 0.95), 3)} (${w.length})`)(g.filter(r => agreed(r) && r.ownWindowErr !== null).map(r => Math.abs(r.ownWindowErr!))),
     ])
   }
   const widths = table[0]!.map((_, c) => Math.max(...table.map(r => [...r[c]!].length)))
