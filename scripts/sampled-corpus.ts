@@ -542,7 +542,7 @@ const root = join(dirname(fileURLToPath(import.meta.url)), '..')
 
 /** The small takes the unit tests read (16 kHz, mono 16-bit WAV, 300–500 kB each): a trumpet line with a wrong note
  *  and a tied repeat, a sung line (voice oohs) with vibrato and a note an octave low, a low sung line with vibrato (one
- *  singer), a five-voice section on one part, and a brass quartet sounding together with one part measured. */
+ *  singer), a five-voice section on one part, four singers with repeated notes under their beats, and a brass quartet sounding together with one part measured. */
 export function fixtureSpecs (): TakeSpec[] {
   const beats = [2, 2, 2, 2, 2, 2]
   return [
@@ -589,6 +589,24 @@ export function fixtureSpecs (): TakeSpec[] {
         ],
       }],
       offsets: [-4, 7, 2, -9, 5], driftCentsPerMin: 0, leadInS: 0.8, lateS: [0.02, 0.04, 0, 0.03, 0.01],
+      repeats: 'rearticulate', gapS: 0.1, rate: 16000,
+    },
+    {
+      // Four singers (voice oohs) whose beats dip the level by up to about 20 dB within a hold,
+      // while a repeated note's re-strike, under the patch's slow release, shows no dip of its own:
+      // two repeated E4s, a steady drift, each voice with its own detune, vibrato and start.
+      id: 'section-oohs-repeats', kind: 'section', label: 'Voice oohs (53) ×4 voices at 60 bpm: repeated notes re-struck under the beats, drift −30 ¢/min',
+      tempo: 60, beats: [3, 2, 2, 2, 2, 3], part: 'P',
+      parts: [{
+        name: 'P', notes: [62, 64, 64, 65, 64, 64],
+        voices: [
+          { program: 53, detuneCents: 4, vibrato: { rateHz: 4.71, extentCents: 9, phase: 2.95 }, startS: 0 },
+          { program: 53, detuneCents: 2, vibrato: { rateHz: 5.97, extentCents: 12, phase: 0.86 }, startS: 0.038 },
+          { program: 53, detuneCents: -3, vibrato: { rateHz: 4.71, extentCents: 13, phase: 3.17 }, startS: 0.012 },
+          { program: 53, detuneCents: -4, vibrato: { rateHz: 5.5, extentCents: 11, phase: 5.47 }, startS: 0.037 },
+        ],
+      }],
+      offsets: [0, 0, 0, 0, 0, 0], driftCentsPerMin: -30, leadInS: 1, lateS: [0.02, 0.02, 0.017, 0.005, 0.021, 0.012],
       repeats: 'rearticulate', gapS: 0.1, rate: 16000,
     },
     {

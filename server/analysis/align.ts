@@ -63,13 +63,23 @@ const POSITION_WEIGHT_PER_S = 5
 // re-articulation (a short energy dip between two loud stretches). Each boundary strictly
 // inside a placed hold costs as much as the hold's expected length in matching frames.
 const BOUNDARY_MARGIN_S = 0.12
+// A dip the note sounds through (no pitch change, no break) splits a repeated note only this
+// near its chord boundary under the map: several voices on one part dip as they beat, anywhere
+// in a hold, by up to about 20 dB at the fundamental.
+const REPEAT_DIP_WINDOW_S = 0.35
+
+/** boundaryFrames' marks: a lasting pitch change or a break in the sound (the level falls below
+ *  the voicing gate at the dip), or only a dip in level with the note sounding right through it. */
+export const BOUNDARY_PITCH = 1
+export const BOUNDARY_DIP = 2
 
 /**
  * Frames where the take shows a new note starting: the median pitch of the next five voiced
  * frames differs from that of the previous five by more than 0.7 semitone (a lasting change,
  * not one stray frame), or the energy dips below a quarter of the level on both sides within
  * 0.6 s (a re-articulation or a breath) with no other such dip within 0.5 s (beating voices).
- * Local strongest points only.
+ * Local strongest points only, marked BOUNDARY_DIP where the only reason is a dip the note
+ * sounds through (the level stays above the voicing gate), BOUNDARY_PITCH otherwise.
  */
 export function boundaryFrames (track: CoarseTrack): Uint8Array {
   const F = track.times.length
@@ -79,6 +89,8 @@ export function boundaryFrames (track: CoarseTrack): Uint8Array {
   const semis = new Float64Array(F)
   for (let j = 0; j < F; j++) semis[j] = track.voiced[j] ? 12 * Math.log2(track.hz[j]!) : NaN
   const strength = new Float64Array(F)
+  // Where the strongest reason is a dip the note sounds through: BOUNDARY_DIP, else BOUNDARY_PITCH.
+  const dipOnly = new Uint8Array(F)
   const prev: number[] = []
   for (let j = 0; j < F; j++) {
     if (!track.voiced[j]) continue
@@ -131,7 +143,10 @@ export function boundaryFrames (track: CoarseTrack): Uint8Array {
     const p = clusters[i - 1]
     const q = clusters[i + 1]
     const beating = (p !== undefined && c[0]! - p[p.length - 1]! <= beatGap) || (q !== undefined && q[0]! - c[c.length - 1]! <= beatGap)
-    if (!beating) for (const j of c) strength[j] = Math.max(strength[j]!, 1)
+    if (beating) return
+    let voicedThrough = true
+    for (let j = Math.max(0, c[0]! - 1); j <= Math.min(F - 1, c[c.length - 1]! + 1); j++) if (!(track.energy[j]! > track.gate)) voicedThrough = false
+    for (const j of c) if (!(strength[j]! >= 1)) { strength[j] = 1; dipOnly[j] = voicedThrough ? 1 : 0 }
   })
   const half = Math.max(1, Math.round(0.15 / track.hopS))
   for (let j = 0; j < F; j++) {
@@ -140,7 +155,7 @@ export function boundaryFrames (track: CoarseTrack): Uint8Array {
     for (let q = Math.max(0, j - half); q <= Math.min(F - 1, j + half) && isMax; q++) {
       if (strength[q]! > strength[j]! || (strength[q]! === strength[j]! && q < j)) isMax = false
     }
-    if (isMax) out[j] = 1
+    if (isMax) out[j] = dipOnly[j] ? BOUNDARY_DIP : BOUNDARY_PITCH
   }
   return out
 }
@@ -195,13 +210,17 @@ export function alignHolds (tracks: CoarseTrack[], holds: ExpectedHold[], opts: 
   })
   const cost = holds.map(h => costPrefix.get(keyOf(h.expectedHz))!)
   // Boundaries the take shows, per distinct track, as prefix counts.
-  const boundPrefix = new Map<CoarseTrack, Float64Array>()
+  const boundPrefix = new Map<CoarseTrack, { pitch: Float64Array, dip: Float64Array }>()
   for (const tr of tracks) {
     if (boundPrefix.has(tr)) continue
     const bf = boundaryFrames(tr)
-    const bp = new Float64Array(F + 1)
-    for (let j = 0; j < F; j++) bp[j + 1] = bp[j]! + bf[j]!
-    boundPrefix.set(tr, bp)
+    const pitch = new Float64Array(F + 1)
+    const dip = new Float64Array(F + 1)
+    for (let j = 0; j < F; j++) {
+      pitch[j + 1] = pitch[j]! + (bf[j] === BOUNDARY_PITCH ? 1 : 0)
+      dip[j + 1] = dip[j]! + (bf[j] === BOUNDARY_DIP ? 1 : 0)
+    }
+    boundPrefix.set(tr, { pitch, dip })
   }
   const gain = holds.map(h => gainPrefix.get(keyOf(h.expectedHz))!)
   // Frame index whose centre is the first at or after time t (rounding; exact halves do not matter).
@@ -295,13 +314,27 @@ export function alignHolds (tracks: CoarseTrack[], holds: ExpectedHold[], opts: 
     const cp = new Float64Array(U + 1)
     for (let u = 0; u <= U; u++) cp[u] = cpf[u * step]!
     const bpf = boundPrefix.get(tracks[i]!)!
+    // An energy dip alone is what splits a repeated note (elsewhere the pitch change does), and
+    // several voices on one part dip as they beat with no new note at all: a dip counts only
+    // near where the hold meets the same note under the map (frames).
+    const dipWin: Array<[number, number]> = []
+    const w = Math.round(REPEAT_DIP_WINDOW_S / hop)
+    if (i > 0 && holds[i - 1]!.midi === holds[i]!.midi) dipWin.push([Math.round(m.a * step) - w, Math.round(m.a * step) + w])
+    if (i + 1 < N && holds[i + 1]!.midi === holds[i]!.midi) dipWin.push([Math.round(m.b * step) - w, Math.round(m.b * step) + w])
     const margin = Math.max(1, Math.round(BOUNDARY_MARGIN_S / hop))
     const boundaryCost = Math.max(30, nExp * step)
     // Boundaries inside [a, b) blocks, the first and last `margin` frames excepted.
     const inner = (a: number, b: number) => {
       const fa = Math.min(F, a * step + margin)
       const fb = Math.max(0, b * step - margin)
-      return fb > fa ? bpf[fb]! - bpf[fa]! : 0
+      if (!(fb > fa)) return 0
+      let n = bpf.pitch[fb]! - bpf.pitch[fa]!
+      for (const [p, q] of dipWin) {
+        const lo = Math.max(fa, p, 0)
+        const hi = Math.min(fb, q, F)
+        if (hi > lo) n += bpf.dip[hi]! - bpf.dip[lo]!
+      }
+      return n
     }
     const durPen = new Float64Array(Lmax + 1)
     // Duration prior in frame units, so it weighs like the per-frame costs.

@@ -163,7 +163,15 @@ export function measureTake (audio: DecodedAudio, expected: ExpectedHold[], opts
       if (!boundCache.has(t)) boundCache.set(t, boundaryFrames(t))
       return boundCache.get(t)!
     })
-    const onsetPairs = (f: ReturnType<typeof findOnsets>) => f.flatMap((o, i) => (o.onsetS === null ? [] : [{ drillS: notes[i]!.startS, takeS: o.onsetS }]))
+    // The map is fitted to the onsets where the note changes (or after a rest) when there are
+    // enough of them: a repeated note's re-attack is hard to tell from the dips of several voices
+    // beating, and two such onsets a chord off tip a short take's map by several per cent.
+    const changes = notes.map((h, i) => i === 0 || notes[i - 1]!.midi !== h.midi || notes[i - 1]!.endS < h.startS)
+    const onsetPairs = (f: ReturnType<typeof findOnsets>) => {
+      const all = f.flatMap((o, i) => (o.onsetS === null ? [] : [{ drillS: notes[i]!.startS, takeS: o.onsetS, change: changes[i]! }]))
+      const sure = all.filter(p => p.change)
+      return sure.length >= Math.max(3, 0.5 * all.length) ? sure : all
+    }
     let alignment = alignHolds(trackOf, notes, known ? { map: known, withinChordS: CHORD_MAP_TOLERANCE_S, unvoicedCost: CHORD_UNVOICED_COST } : {})
     // Under a chord map the placed start is already within its chord: before it, the part's
     // series may be another part's same note in the chord before (the tuba's G2 before the

@@ -21,9 +21,10 @@ const near = (hz: number, refHz: number) => {
 }
 
 /**
- * Onset and release of every placed hold from its coarse track: the first and last frames near
- * the note heard there (the median pitch of the placed frames, which for a wrong note is not
- * the expected one) at ≥ 30 % of the hold's median level, searched from
+ * Onset and release of every placed hold from its coarse track: the first frame near the note
+ * heard there (the median pitch of the placed frames, which for a wrong note is not the expected
+ * one) at ≥ 15 % of the hold's median level (a horn or a sung "oo" swells for a few tenths of a
+ * second after it starts) and the last at ≥ 30 %, searched from
  * `lookBackS` (0.15 s) before to 0.3 s after the placed start (and to 0.25 s after the placed end). A hold that
  * directly follows the same note with no boundary (pitch change, energy dip) between them was
  * not re-articulated: its start is only the chord boundary.
@@ -45,7 +46,7 @@ export function findOnsets (tracks: CoarseTrack[], placements: HoldPlacement[], 
     if (lv.length < 3) return { onsetS: null, releaseS: null, articulated: false }
     lv.sort((a, b) => a - b)
     const thr = 0.3 * lv[lv.length >> 1]!
-    const ok = (j: number) => tr.voiced[j] === 1 && near(tr.hz[j]!, refHz) && tr.energy[j]! >= thr
+    const ok = (j: number, level = thr) => tr.voiced[j] === 1 && near(tr.hz[j]!, refHz) && tr.energy[j]! >= level
     let on = -1
     let a = Math.max(0, p.frameStart - Math.round(lookBackS / hop))
     const b = Math.min(F - 1, p.frameStart + Math.round(0.3 / hop))
@@ -58,7 +59,8 @@ export function findOnsets (tracks: CoarseTrack[], placements: HoldPlacement[], 
       for (let j = a; j <= Math.min(F - 1, p.frameStart + Math.round(0.15 / hop)); j++) if (tr.energy[j]! < tr.energy[low]!) low = j
       a = Math.min(b, low + 1)
     }
-    for (let j = a; j <= b; j++) if (ok(j)) { on = j; break }
+    const onThr = thr / 2
+    for (let j = a; j <= b; j++) if (ok(j, onThr)) { on = j; break }
     let off = -1
     const c = Math.min(F - 1, p.frameEnd - 1 + Math.round(0.25 / hop))
     for (let j = c; j >= Math.max(0, p.frameEnd - 1 - Math.round(0.3 / hop)); j--) if (ok(j)) { off = j; break }
