@@ -110,6 +110,35 @@ export function driftText(driftCentsPerMin: number | null | undefined): string {
   return d === null ? DRIFT_TOO_FEW : formatNumber(d, 1, '¢/min', { signed: true })
 }
 
+/** Within this many seconds of the beat a hold's start reads "on the beat". */
+export const ON_BEAT_S = 0.05
+
+/** What the wording needs of a hold's timing (the report's `timing`). */
+export interface WordedTiming {
+  start: 'onset' | 'chord_boundary'
+  fromBeatS: number | null
+}
+
+/**
+ * Where a hold started against its beat under the take's time map: "on the beat", "0.12 s late",
+ * "0.08 s early", or, for a repeated note held through with no new attack, "held over (no new
+ * attack)". A dash when the hold was not placed.
+ */
+export function timingText(t: WordedTiming | null | undefined): string {
+  if (!t) return '—'
+  if (t.start === 'chord_boundary') return 'held over (no new attack)'
+  const d = finite(t.fromBeatS)
+  if (d === null) return '—'
+  if (Math.abs(d) < ON_BEAT_S) return 'on the beat'
+  return `${Math.abs(d).toFixed(2)} s ${d > 0 ? 'late' : 'early'}`
+}
+
+/** "voices about 14 ¢ apart" for a hold sung by several voices; null for one voice. */
+export function voicesText(voiceSpreadCents: number | null | undefined): string | null {
+  const v = finite(voiceSpreadCents)
+  return v === null ? null : `voices about ${Math.round(v)} ¢ apart`
+}
+
 function finite(v: number | null | undefined): number | null {
   return typeof v === 'number' && Number.isFinite(v) ? v : null
 }

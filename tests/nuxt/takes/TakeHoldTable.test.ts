@@ -23,6 +23,22 @@ const missing: TakeHold = {
 }
 
 describe('TakeHoldTable', () => {
+  it('says where each hold started against its beat, and how far apart the voices of a section were', async () => {
+    const sung: TakeHold = { ...third, timing: { onsetS: 1.32, releaseS: 4.7, start: 'onset', fromBeatS: 0.12 }, voiceSpreadCents: 13.6 }
+    const tied: TakeHold = { ...flatRoot, timing: { onsetS: null, releaseS: 8.8, start: 'chord_boundary', fromBeatS: null } }
+    const w = await mountSuspended(TakeHoldTable, { props: { holds: [sung, tied, missing], tolerance: 10 } })
+    const rows = w.findAll('tbody tr')
+    expect(rows[0]!.find('[data-col="timing"]').text()).toBe('0.12 s late')
+    expect(rows[0]!.find('[data-col="voices"]').text()).toBe('voices about 14 ¢ apart')
+    expect(rows[1]!.find('[data-col="timing"]').text()).toBe('held over (no new attack)')
+    expect(rows[1]!.find('[data-col="voices"]').exists()).toBe(false)
+    // The phone cards say the same.
+    const cards = w.findAll('[data-testid="hold-cards"] li')
+    expect(cards[0]!.find('[data-col="timing"]').text()).toContain('0.12 s late')
+    expect(cards[0]!.find('[data-col="voices"]').text()).toContain('voices about 14 ¢ apart')
+    expect(cards[1]!.find('[data-col="timing"]').text()).toContain('held over (no new attack)')
+  })
+
   it('shows signed cents with a true minus sign (U+2212), never a hyphen', async () => {
     const w = await mountSuspended(TakeHoldTable, { props: { holds: [third, flatRoot, missing], tolerance: 10, part: 'Alto' } })
     const rows = w.findAll('tbody tr')

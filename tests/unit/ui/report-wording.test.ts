@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { DRIFT_TOO_FEW, driftText, formatWholeCents, holdKind, withReferencePitch, wrongNote, wrongNoteText } from '../../../shared/report-wording'
+import { DRIFT_TOO_FEW, driftText, formatWholeCents, holdKind, timingText, voicesText, withReferencePitch, wrongNote, wrongNoteText } from '../../../shared/report-wording'
 import { computeTargets } from '../../../shared/tuning/index'
 import type { DrillDocument } from '../../../shared/drill/schema'
 
@@ -88,5 +88,29 @@ describe('the reference pitch is named once', () => {
     expect(d).not.toContain('A4')
     expect(withReferencePitch(d, 442)).toBe(`${d}, A4 = 442 Hz`)
     expect(withReferencePitch(withReferencePitch(d, 442), 442).match(/A4 =/g)).toHaveLength(1)
+  })
+})
+
+describe('a hold says when it started against its beat', () => {
+  it.each([
+    [{ start: 'onset', fromBeatS: 0.123 }, '0.12 s late'],
+    [{ start: 'onset', fromBeatS: -0.08 }, '0.08 s early'],
+    [{ start: 'onset', fromBeatS: 0.049 }, 'on the beat'],
+    [{ start: 'onset', fromBeatS: -0.02 }, 'on the beat'],
+    [{ start: 'onset', fromBeatS: null }, '—'],
+    [{ start: 'chord_boundary', fromBeatS: null }, 'held over (no new attack)'],
+    [null, '—'],
+  ] as const)('%j → %s', (t, text) => {
+    expect(timingText(t)).toBe(text)
+  })
+})
+
+describe('a hold sung by several voices says how far apart they are', () => {
+  it('rounds to whole cents and says nothing for one voice', () => {
+    expect(voicesText(14.4)).toBe('voices about 14 ¢ apart')
+    expect(voicesText(8.6)).toBe('voices about 9 ¢ apart')
+    expect(voicesText(null)).toBeNull()
+    expect(voicesText(undefined)).toBeNull()
+    expect(voicesText(Number.NaN)).toBeNull()
   })
 })
