@@ -22,11 +22,11 @@
 //   constant at the window centre is the hold centre (= mean log-frequency of the steady part).
 // - Several voices (a section recorded together): when the harmonics' spread about their moving
 //   centre is 8 ¢ or more (one voice shows a few cents at most) and the pitch track wanders by
-//   2.6 ¢ or more once vibrato is removed (the beats hand it from voice to voice), the centre is the mean of the
-//   harmonics' power-weighted frequencies over the steady part, one vote per harmonic heard
-//   (voices.ts), which beats do not scramble, its
-//   SE comes from four block centres and the harmonics' disagreement, and the hold reports the
-//   voices' spread (voiceSpreadCents). One voice: voiceSpreadCents null.
+//   2.6 ¢ or more once vibrato is removed (the beats hand it from voice to voice), the centre is
+//   the mean of the harmonics' power-weighted frequencies over the steady part, one vote per
+//   harmonic heard (voices.ts), which beats do not scramble, its SE comes from four block centres
+//   and the harmonics' disagreement, and the hold reports the voices' spread (voiceSpreadCents).
+//   One voice: voiceSpreadCents null.
 // - SE of the centre: the larger of the four-block SE above and the harmonics' disagreement
 //   (1.4826 × MAD of each harmonic's own centre / √n, voices.ts harmonicMedian): a tone
 //   whose partials are not quite harmonic has a pitch that depends on the harmonics heard.
