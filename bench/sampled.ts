@@ -10,7 +10,7 @@ import { decodeAudio } from '../server/analysis/decode'
 import { fitDrift } from '../server/analysis/drift'
 import { measureTake } from '../server/analysis/measure'
 import type { ExpectedHold, Measurement } from '../server/analysis/types'
-import { aubioTracks, buildSampledCorpus, logMeanOf, missingTool } from '../scripts/sampled-corpus'
+import { aubioTracks, buildSampledCorpus, logMeanOf, missingTool, voiceShapeCents, wholeVibratoCycles } from '../scripts/sampled-corpus'
 import type { RenderedTake, TakeKind } from '../scripts/sampled-corpus'
 
 const cents = (a: number, b: number) => 1200 * Math.log2(a / b)
@@ -63,8 +63,7 @@ export function askedVoiceSpread (take: RenderedTake, hold: { steadyStartS: numb
   let sum = 0
   let n = 0
   for (let t = hold.steadyStartS; t <= hold.steadyEndS; t += 0.005) {
-    const c = voices.map(v => v.detuneCents + (v.vibrato ? v.vibrato.extentCents * Math.sin(2 * Math.PI * v.vibrato.rateHz * t + v.vibrato.phase) : 0) +
-      (v.wander ?? []).reduce((s, w) => s + w.cents * Math.sin(2 * Math.PI * w.rateHz * t + w.phase), 0))
+    const c = voices.map(v => voiceShapeCents(v, t))
     const mean = c.reduce((a, b) => a + b, 0) / c.length
     sum += c.reduce((a, b) => a + (b - mean) ** 2, 0) / c.length
     n++
@@ -84,20 +83,12 @@ export const TRUTH_AGREED_CENTS = 0.5
  */
 function soloPraatTruths (take: RenderedTake, work: string): Array<number | null> {
   const voices = take.spec.parts.find(p => p.name === take.spec.part)!.voices
-  const perVoice = voices.map((v, vi) => praatMeans(take.file.replace(/\.wav$/, `.solo${vi}.wav`), take.holds.map((h) => {
-    let a = h.steadyStartS
-    let b = h.steadyEndS
-    if (v.vibrato) {
-      const keep = Math.floor((b - a) * v.vibrato.rateHz) / v.vibrato.rateHz
-      a = (h.steadyStartS + h.steadyEndS) / 2 - keep / 2
-      b = a + keep
-    }
-    return { a, b, hz: h.truthHz }
-  }), work))
+  const perVoice = voices.map((v, vi) => praatMeans(take.file.replace(/\.wav$/, `.solo${vi}.wav`),
+    take.holds.map(h => ({ ...wholeVibratoCycles(h.steadyStartS, h.steadyEndS, v.vibrato), hz: h.truthHz })), work))
   return take.holds.map((_, i) => {
     const all = perVoice.map(pv => pv[i])
     if (all.some(v => !v)) return null
-    return Math.pow(2, all.reduce((s, v) => s + Math.log2(v!), 0) / all.length)
+    return Math.pow(2, all.reduce<number>((s, v) => s + Math.log2(v!), 0) / all.length)
   })
 }
 
@@ -111,17 +102,18 @@ function ownWindowTruth (take: RenderedTake, tracks: Array<Array<() => Array<[nu
   const voices = take.spec.parts.find(p => p.name === take.spec.part)!.voices
   let sum = 0
   for (const [vi, v] of voices.entries()) {
-    let wa = a
-    let wb = b
-    if (v.vibrato) {
-      const keep = Math.floor((b - a) * v.vibrato.rateHz) / v.vibrato.rateHz
-      if (keep <= 0) return null
-      wa = (a + b) / 2 - keep / 2
-      wb = wa + keep
-    }
-    try { sum += Math.log2(logMeanOf(tracks[vi]!, wa, wb, nearHz)) } catch { return null }
+    const w = wholeVibratoCycles(a, b, v.vibrato)
+    if (!(w.b > w.a)) return null
+    try { sum += Math.log2(logMeanOf(tracks[vi]!, w.a, w.b, nearHz)) } catch { return null }
   }
   return Math.pow(2, sum / voices.length)
+}
+
+/** Driftline's centre against ownWindowTruth, cents; null when the hold was not measured. */
+function ownWindowErr (found: boolean, held: Measurement['holds'][number], take: RenderedTake, tracks: Array<Array<() => Array<[number, number]>>>, nearHz: number): number | null {
+  if (!found || held.steadyStartS == null || held.steadyEndS == null) return null
+  const ref = ownWindowTruth(take, tracks, held.steadyStartS, held.steadyEndS, nearHz)
+  return ref ? cents(held.detectedHz!, ref) : null
 }
 
 interface HoldRow {
@@ -176,9 +168,7 @@ export async function sampledTable (dir: string): Promise<string[]> {
           err: found ? cents(held.detectedHz!, t.truthHz) : null,
           praatErr: praat[i] ? cents(praat[i]!, t.truthHz) : null,
           truthAgreement: soloPraat[i] ? cents(soloPraat[i]!, t.truthHz) : null,
-          ownWindowErr: found && held.steadyStartS !== null && held.steadyEndS !== null && held.steadyStartS !== undefined && held.steadyEndS !== undefined
-            ? ((ref) => (ref ? cents(held.detectedHz!, ref) : null))(ownWindowTruth(take, soloTracks, held.steadyStartS, held.steadyEndS, t.truthHz))
-            : null,
+          ownWindowErr: ownWindowErr(found, held, take, soloTracks, t.truthHz),
           onsetErr: found ? held.startS - t.onS : null,
           confidence: held.confidence, tied: t.tied,
           spread: found ? held.voiceSpreadCents ?? null : null, spreadAsked: askedVoiceSpread(take, t),

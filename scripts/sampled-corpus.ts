@@ -293,11 +293,25 @@ function partNotes (spec: TakeSpec, part: PartSpec, late: boolean): Timed[] {
   return out
 }
 
-/** Whole-cent bend of one voice at take time t (offset of the chord sounding, drift, detune, vibrato). */
-function voiceCents (spec: TakeSpec, v: VoiceSpec, t: number, measured: boolean): number {
+/** One voice's own shape at take time t, cents (detune, vibrato and wander; not yet whole cents). */
+export function voiceShapeCents (v: VoiceSpec, t: number): number {
   let c = v.detuneCents
   if (v.vibrato) c += v.vibrato.extentCents * Math.sin(2 * Math.PI * v.vibrato.rateHz * t + v.vibrato.phase)
   for (const w of v.wander ?? []) c += w.cents * Math.sin(2 * Math.PI * w.rateHz * t + w.phase)
+  return c
+}
+
+/** The middle of [a, b] cut to whole cycles of a voice's vibrato (all of it without vibrato). */
+export function wholeVibratoCycles (a: number, b: number, vibrato: VoiceSpec['vibrato']): { a: number, b: number } {
+  if (!vibrato) return { a, b }
+  const keep = Math.floor((b - a) * vibrato.rateHz) / vibrato.rateHz
+  const from = (a + b) / 2 - keep / 2
+  return { a: from, b: from + keep }
+}
+
+/** Whole-cent bend of one voice at take time t (offset of the chord sounding, drift, detune, vibrato). */
+function voiceCents (spec: TakeSpec, v: VoiceSpec, t: number, measured: boolean): number {
+  let c = voiceShapeCents(v, t)
   if (measured) {
     const spb = 60 / spec.tempo
     let beat = 0
@@ -458,14 +472,8 @@ function renderTake (spec: TakeSpec, dir: string, cal: Record<string, number>): 
       }
       let heard = 0
       part.voices.forEach((v, vi) => {
-        let wa = a
-        let wb = b
-        if (v.vibrato) {
-          const keep = Math.floor((b - a) * v.vibrato.rateHz) / v.vibrato.rateHz
-          wa = (a + b) / 2 - keep / 2
-          wb = wa + keep
-        }
-        heard += 1200 * Math.log2(logMeanOf(soloTracks[vi]!, wa, wb, etHz(n.midi) * Math.pow(2, voiceCents(spec, v, (a + b) / 2, true) / 1200)) / etHz(n.midi))
+        const w = wholeVibratoCycles(a, b, v.vibrato)
+        heard += 1200 * Math.log2(logMeanOf(soloTracks[vi]!, w.a, w.b, etHz(n.midi) * Math.pow(2, voiceCents(spec, v, (a + b) / 2, true) / 1200)) / etHz(n.midi))
       })
       heard /= part.voices.length
       const calMean = part.voices.reduce((s, v) => s + calibrate(v.program, n.midi, dir, cal), 0) / part.voices.length
