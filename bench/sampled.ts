@@ -12,6 +12,7 @@ import { measureTake } from '../server/analysis/measure'
 import type { ExpectedHold, Measurement } from '../server/analysis/types'
 import { aubioTracks, buildSampledCorpus, logMeanOf, missingTool, voiceShapeCents, wholeVibratoCycles } from '../scripts/sampled-corpus'
 import type { RenderedTake, TakeKind } from '../scripts/sampled-corpus'
+import { CENTRE_RANGE_FLOOR_CENTS, centreRangeCents } from '../shared/report-wording'
 
 const cents = (a: number, b: number) => 1200 * Math.log2(a / b)
 const etHz = (midi: number) => 440 * Math.pow(2, (midi - 69) / 12)
@@ -129,6 +130,8 @@ interface HoldRow {
   /** Driftline against aubiopitch on the voices alone over Driftline's own steady window, cents. */
   ownWindowErr: number | null
   onsetErr: number | null
+  /** The ± range the report shows for the centre (cents), null when not measured. */
+  range: number | null
   confidence: number
   tied: boolean
   /** GM programs of the measured part's voices. */
@@ -169,7 +172,7 @@ export async function sampledTable (dir: string): Promise<string[]> {
           praatErr: praat[i] ? cents(praat[i]!, t.truthHz) : null,
           truthAgreement: soloPraat[i] ? cents(soloPraat[i]!, t.truthHz) : null,
           ownWindowErr: ownWindowErr(found, held, take, soloTracks, t.truthHz),
-          onsetErr: found ? held.startS - t.onS : null,
+          onsetErr: found ? held.startS - t.onS : null, range: found ? centreRangeCents(held.centreErrorCents) : null,
           confidence: held.confidence, tied: t.tied,
           spread: found ? held.voiceSpreadCents ?? null : null, spreadAsked: askedVoiceSpread(take, t),
           programs: take.spec.parts.find(p => p.name === take.spec.part)!.voices.map(v => v.program),
@@ -234,6 +237,10 @@ export async function sampledTable (dir: string): Promise<string[]> {
     const b = rows.filter(r => r.found && r.confidence >= band[0] && r.confidence < band[1])
     out.push(`  confidence ${band[0]}–${Math.min(1, band[1])}: ${b.length} holds, within 1 ¢: ${b.filter(r => Math.abs(r.err!) <= 1).length}`)
   }
+  const inRange = (g: HoldRow[]) => `${g.filter(r => r.range !== null && Math.abs(r.err!) <= r.range).length}/${g.length}`
+  const measured = rows.filter(r => r.found && r.kind !== 'chord')
+  out.push(`Centre range (the ± the report shows: two standard errors + ${CENTRE_RANGE_FLOOR_CENTS} ¢) holds the truth on ${inRange(measured.filter(agreed))} holds where the truths agree ` +
+    `(target 95 %), ${inRange(measured)} of every measured hold; whole chords ${inRange(rows.filter(r => r.found && r.kind === 'chord'))}.`)
   const byTake = [...new Set(rows.map(r => r.take))].map((id) => {
     const d = rows.filter(r => r.take === id && r.truthAgreement !== null).map(r => Math.abs(r.truthAgreement!))
     return `${id} ${f(q(d, 0.5))}/${f(Math.max(...d))}`

@@ -139,6 +139,29 @@ export function voicesText(voiceSpreadCents: number | null | undefined): string 
   return v === null ? null : `voices about ${Math.round(v)} ¢ apart`
 }
 
+/**
+ * Cents either side of a hold's centre within which its true centre lies: two standard errors
+ * (about 95 % of a normally distributed estimate, common practice) plus a floor for what the
+ * standard error leaves out (a tone whose partials are not quite harmonic, the stretch of the
+ * hold the centre is taken over). With the floor at 0.25 ¢ the range held the truth on 95 % of
+ * the sampled corpus's measured holds (instruments, one singer and sections whose truth two
+ * independent estimators agree on; `npm run bench:analysis` prints the figure). Null when the
+ * analysis gave no standard error.
+ */
+export const CENTRE_RANGE_FLOOR_CENTS = 0.25
+
+export function centreRangeCents(centreErrorCents: number | null | undefined): number | null {
+  const se = finite(centreErrorCents)
+  if (se === null || se < 0) return null
+  return Math.ceil((2 * se + CENTRE_RANGE_FLOOR_CENTS) * 10 - 1e-9) / 10
+}
+
+/** "±1.4 ¢" (the centre's range, see centreRangeCents); null when unknown. */
+export function centreRangeText(centreErrorCents: number | null | undefined): string | null {
+  const r = centreRangeCents(centreErrorCents)
+  return r === null ? null : `±${formatNumber(r, 1, '¢')}`
+}
+
 function finite(v: number | null | undefined): number | null {
   return typeof v === 'number' && Number.isFinite(v) ? v : null
 }

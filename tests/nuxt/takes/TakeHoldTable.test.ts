@@ -39,6 +39,19 @@ describe('TakeHoldTable', () => {
     expect(cards[1]!.find('[data-col="timing"]').text()).toContain('held over (no new attack)')
   })
 
+  it('says how closely each centre is known, and nothing where the analysis gave no standard error', async () => {
+    // Two standard errors plus the 0.25 ¢ floor: 2 × 0.6 + 0.25 = 1.45 → ±1.5 ¢.
+    const section: TakeHold = { ...third, centreErrorCents: 0.6 }
+    const w = await mountSuspended(TakeHoldTable, { props: { holds: [section, flatRoot, missing], tolerance: 10 } })
+    const rows = w.findAll('tbody tr')
+    expect(rows[0]!.find('[data-col="centre-range"]').text()).toBe('measured to within ±1.5 ¢')
+    expect(rows[1]!.find('[data-col="centre-range"]').exists()).toBe(false)
+    expect(rows[2]!.find('[data-col="centre-range"]').exists()).toBe(false)
+    const cards = w.findAll('[data-testid="hold-cards"] li')
+    expect(cards[0]!.find('[data-col="centre-range"]').text()).toBe('measured to within ±1.5 ¢')
+    expect(w.text()).not.toContain('NaN')
+  })
+
   it('shows signed cents with a true minus sign (U+2212), never a hyphen', async () => {
     const w = await mountSuspended(TakeHoldTable, { props: { holds: [third, flatRoot, missing], tolerance: 10, part: 'Alto' } })
     const rows = w.findAll('tbody tr')

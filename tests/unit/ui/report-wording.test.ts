@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { DRIFT_TOO_FEW, driftText, formatWholeCents, holdKind, timingText, voicesText, withReferencePitch, wrongNote, wrongNoteText } from '../../../shared/report-wording'
+import { CENTRE_RANGE_FLOOR_CENTS, centreRangeCents, centreRangeText, DRIFT_TOO_FEW, driftText, formatWholeCents, holdKind, timingText, voicesText, withReferencePitch, wrongNote, wrongNoteText } from '../../../shared/report-wording'
 import { computeTargets } from '../../../shared/tuning/index'
 import type { DrillDocument } from '../../../shared/drill/schema'
 
@@ -112,5 +112,26 @@ describe('a hold sung by several voices says how far apart they are', () => {
     expect(voicesText(null)).toBeNull()
     expect(voicesText(undefined)).toBeNull()
     expect(voicesText(Number.NaN)).toBeNull()
+  })
+})
+
+describe('a hold says how closely its centre is known', () => {
+  it('is two standard errors (about 95 % of a normal estimate, common practice) plus the floor, rounded up to 0.1 ¢', () => {
+    expect(CENTRE_RANGE_FLOOR_CENTS).toBe(0.25)
+    // 2 × 0.5 + 0.25 = 1.25 → 1.3; 2 × 0.1 + 0.25 = 0.45 → 0.5; 2 × 1.2 + 0.25 = 2.65 → 2.7.
+    expect(centreRangeCents(0.5)).toBe(1.3)
+    expect(centreRangeCents(0.1)).toBe(0.5)
+    expect(centreRangeCents(1.2)).toBe(2.7)
+    // Exactly on a tenth stays there: 2 × 0.375 + 0.25 = 1.0.
+    expect(centreRangeCents(0.375)).toBe(1)
+    expect(centreRangeText(0.5)).toBe('±1.3 ¢')
+    expect(centreRangeText(0)).toBe('±0.3 ¢')
+  })
+
+  it('says nothing without a standard error, and never shows NaN', () => {
+    for (const v of [null, undefined, Number.NaN, Number.POSITIVE_INFINITY, -1]) {
+      expect(centreRangeCents(v)).toBeNull()
+      expect(centreRangeText(v)).toBeNull()
+    }
   })
 })
