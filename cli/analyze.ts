@@ -4,7 +4,7 @@ import { TuningError } from '../shared/tuning/index'
 import { analyzeTake } from '../server/analysis/index'
 import type { TakeReport } from '../server/analysis/index'
 import { isAnalysisError } from '../server/analysis/errors'
-import { DRIFT_TOO_FEW, holdKind, withReferencePitch, wrongNoteText } from '../shared/report-wording'
+import { centreRangeText, DRIFT_TOO_FEW, holdKind, withReferencePitch, wrongNoteText } from '../shared/report-wording'
 import type { Io } from './common'
 import { checkSystemFlags, loadDrill, pad, parseFlags, parseFraction, parseNumber, readInput, signed, SYSTEM_HELP, SYSTEM_OPTIONS, systemFromFlags, TUNING_HELP, UsageError } from './common'
 
@@ -65,7 +65,7 @@ export function formatReport (drill: DrillDocument, report: TakeReport): string 
     }
     rows.push([
       String(h.index + 1), h.note, h.member ?? '—', h.targetHz.toFixed(3), h.detectedHz.toFixed(3),
-      `${signed(h.centsFromTarget!, 2)} ¢`, `${signed(h.centsFromEqual!, 2)} ¢`, h.withinTolerance ? 'yes' : 'no',
+      `${signed(h.centsFromTarget!, 2)} ¢${centreRangeText(h.centreErrorCents) ? ` ${centreRangeText(h.centreErrorCents)}` : ''}`, `${signed(h.centsFromEqual!, 2)} ¢`, h.withinTolerance ? 'yes' : 'no',
       h.spreadCents === null ? '—' : `${h.spreadCents.toFixed(1)} ¢`, h.slopeCentsPerS === null ? '—' : `${signed(h.slopeCentsPerS, 1)} ¢/s`,
       h.vibrato ? `±${h.vibrato.extentCents.toFixed(0)} ¢ ${h.vibrato.rateHz.toFixed(1)} Hz` : '—', h.confidence.toFixed(2),
     ])

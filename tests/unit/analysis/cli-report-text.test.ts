@@ -43,6 +43,12 @@ describe('driftline analyze text output', () => {
     expect(text).not.toContain('NaN')
   })
 
+  it('says how closely a measured centre is known, as the take page does', () => {
+    // centreErrorCents 0.2: two standard errors plus the 0.25 ¢ floor = 0.65 → ±0.7 ¢.
+    const row = text.split('\n').find(l => /^\s*1\s/.test(l))!
+    expect(row).toContain('+4.99 ¢ ±0.7 ¢')
+  })
+
   it('says "not enough holds" instead of a drift figure', () => {
     expect(text).toContain('drift: not enough holds')
   })
