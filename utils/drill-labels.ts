@@ -32,6 +32,18 @@ export function describeSystem(system: SystemOptions | SystemName | string | nul
   }
 }
 
+/**
+ * The system a take report was scored in, with its options: the report's own when it carries
+ * them; else the drill's when the names agree (or the report names none); else the named system
+ * with default options.
+ */
+export function reportSystemOptions(reported: SystemOptions | string | null | undefined, drill: SystemOptions | null | undefined): SystemOptions {
+  if (reported && typeof reported === 'object') return reported
+  if (drill && (!reported || reported === drill.name)) return drill
+  if (typeof reported === 'string' && reported in SYSTEM_LABELS) return { name: reported as SystemName, seventh: 'harmonic', fraction: '1/4' }
+  return drill ?? { name: 'equal', seventh: 'harmonic', fraction: '1/4' }
+}
+
 const ACCIDENTALS: Record<string, string> = { 'bb': '𝄫', 'b': '♭', '#': '♯', '##': '𝄪', 'x': '𝄪', '': '' }
 
 /** A note name with real accidentals for display: "Bb3" → "B♭3", "F#4" → "F♯4"; anything else unchanged. */

@@ -3,6 +3,7 @@ import { routePatternToRegExp, safeRedirect } from '../../../utils/routes'
 import { apiProblem, tooManyAttemptsMessage } from '../../../utils/api-error'
 import { formatAbsolute, formatRelative } from '../../../utils/time'
 import { linkifyParts } from '../../../utils/linkify'
+import { reportSystemOptions } from '../../../utils/drill-labels'
 
 describe('safeRedirect (no open redirect after sign-in)', () => {
   it.each([
@@ -113,5 +114,24 @@ describe('routePatternToRegExp (which links may be drawn)', () => {
     ['/a/:b?', '/a/', true],
   ])('%s matches %s: %s', (pattern, path, ok) => {
     expect(routePatternToRegExp(pattern).test(path)).toBe(ok)
+  })
+})
+
+describe('reportSystemOptions: the system a take report was scored in, for scoring it again', () => {
+  const drill = { name: 'just-tonic', tonic: 'Bb', seventh: 'harmonic', fraction: '1/4' } as const
+  it('keeps the options a report carries', () => {
+    const own = { name: 'meantone', seventh: 'harmonic', fraction: '1/3' } as const
+    expect(reportSystemOptions(own, drill)).toBe(own)
+  })
+  it('takes the drill\'s options when the report names the same system or none', () => {
+    expect(reportSystemOptions('just-tonic', drill)).toBe(drill)
+    expect(reportSystemOptions(null, drill)).toBe(drill)
+  })
+  it('takes a named system with default options when the drill scored in another', () => {
+    expect(reportSystemOptions('pythagorean', drill)).toEqual({ name: 'pythagorean', seventh: 'harmonic', fraction: '1/4' })
+  })
+  it('falls back to the drill, then to equal temperament, for a name it does not know', () => {
+    expect(reportSystemOptions('made-up', drill)).toBe(drill)
+    expect(reportSystemOptions('made-up', null)).toEqual({ name: 'equal', seventh: 'harmonic', fraction: '1/4' })
   })
 })
