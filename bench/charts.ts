@@ -68,6 +68,7 @@ async function main() {
     const cookie = login.headers.getSetCookie().map(c => c.split(';')[0]).join('; ')
     const headers = { cookie }
     const statsPath = (q: string) => `/api/ensembles/${ensembleId}/stats${q}`
+    const chartsPath = (q: string) => `/api/ensembles/${ensembleId}/charts${q}`
 
     const timeOne = async (path: string) => {
       const t0 = performance.now()
@@ -80,6 +81,8 @@ async function main() {
     const cold = {
       section: await timeOne(statsPath(`?sectionId=${section.id}`)),
       ensemble: await timeOne(statsPath('')),
+      chartsSection: await timeOne(chartsPath(`?sectionId=${section.id}`)),
+      chartsEnsemble: await timeOne(chartsPath('')),
     }
 
     // The server may still be finishing requests a run left in flight (autocannon stops at its
@@ -125,11 +128,14 @@ async function main() {
     const uncached = (q: string) => ({ requests: [{ setupRequest: (req: { path: string }) => ({ ...req, path: statsPath(`${q}${q ? '&' : '?'}to=${new Date(Date.UTC(2030, 0, 1) + (n++) * 1000).toISOString()}`) }) }] })
     await run('stats, one section, all time (repeated)', { url: url + statsPath(`?sectionId=${section.id}`) })
     await run('stats, whole ensemble, all time (repeated)', { url: url + statsPath('') })
+    await run('chart series, one section, all time (repeated)', { url: url + chartsPath(`?sectionId=${section.id}`) })
+    await run('chart series, whole ensemble, all time (repeated)', { url: url + chartsPath('') })
     await run('CSV, one section, all time', { url: `${url}/api/ensembles/${ensembleId}/holds.csv?sectionId=${section.id}`, duration: Math.max(5, DURATION_S / 2) })
     await run('stats, one section, a new range each request', uncached(`?sectionId=${section.id}`))
     await run('stats, whole ensemble, a new range each request', uncached(''))
 
-    console.log(`\nFirst request after start (nothing cached): one section ${cold.section.toFixed(0)} ms, whole ensemble ${cold.ensemble.toFixed(0)} ms`)
+    console.log(`\nFirst request after start (nothing cached): stats of one section ${cold.section.toFixed(0)} ms, of the whole ensemble ${cold.ensemble.toFixed(0)} ms; ` +
+      `chart series of one section ${cold.chartsSection.toFixed(0)} ms, of the whole ensemble ${cold.chartsEnsemble.toFixed(0)} ms`)
     console.log('\n| run | p50 ms | p95 ms | p99 ms | req/s | requests | non-2xx/errors |')
     console.log('| --- | --- | --- | --- | --- | --- | --- |')
     for (const r of rows) console.log(`| ${r.join(' | ')} |`)
