@@ -1,17 +1,6 @@
 import { TakeFields } from '../../../shared/schemas/take'
 import type { TakeCreated } from '../../../shared/types/take'
 
-const REFUSED = {
-  drill_not_found: [404, 'Drill not found'],
-  drill_archived: [409, 'Drill is archived'],
-  unknown_part: [400, 'That part is not in the drill'],
-  assignment_not_found: [404, 'Assignment not found'],
-  assignment_mismatch: [400, 'The assignment is for another drill'],
-  assignment_archived: [409, 'The assignment is archived'],
-  assignment_part: [400, 'The assignment asks for another part'],
-  attempts_used: [409, 'Every attempt of this assignment is used'],
-} as const
-
 // POST /api/takes (multipart: drillId, part, optional assignmentId and idempotencyKey, THEN the
 // file `audio`) → 202 { id, status: 'queued' }; the same idempotency key again → 200 with the
 // first take. The fields and the caller's access are checked before any audio is stored.
@@ -22,10 +11,7 @@ export default defineEventHandler(async (event): Promise<TakeCreated> => {
     const parsed = TakeFields.safeParse(raw)
     if (!parsed.success) throw apiError(400, 'invalid_input', 'Invalid input', { issues: formatIssues(parsed.error), order: 'text fields before the audio file' })
     const out = await prepareTake(db, user, parsed.data)
-    if ('refused' in out) {
-      const { refused, ...details } = out
-      throw apiError(REFUSED[refused][0], refused, REFUSED[refused][1], details)
-    }
+    if ('refused' in out) throw takeRefusedError(out)
     return out
   }
   const limits = takeUploadLimits()
@@ -37,17 +23,11 @@ export default defineEventHandler(async (event): Promise<TakeCreated> => {
   })
   prepared ??= await check(upload.fields)
   if (!upload.file) throw apiError(400, 'missing_file', 'No audio file', { field: 'audio' })
-  let take
-  try {
-    take = await createTake(db, user.id, prepared, upload.file)
-  } catch (err) {
-    await upload.discard() // refused after the file was stored: keep no orphan object
-    throw err
-  }
+  // Refused or failed after the file was stored, or a repeat of an earlier take: keep no orphan object.
+  const take = await createTake(db, user.id, prepared, upload.file).catch(async (err) => { await upload.discard(); throw err })
   if ('refused' in take) {
     await upload.discard()
-    const { refused, ...details } = take
-    throw apiError(REFUSED[refused][0], refused, REFUSED[refused][1], details)
+    throw takeRefusedError(take)
   }
   if (!take.created) await upload.discard()
   else wakeAnalysisPool()
