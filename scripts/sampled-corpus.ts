@@ -260,6 +260,13 @@ export function corpusSpecs (): TakeSpec[] {
   drifting('drift-cl', 'instrument', 'Clarinet (71), alto line, drift +20 ¢/min only', 71, LINES.A!, 20)
   drifting('drift-oohs', 'voice', 'Voice oohs (53), soprano line, vibrato ±12 ¢, drift −24 ¢/min only', 53, LINES.S!, -24, 1, { rateHz: 5.4, extentCents: 12, phase: 0.7 })
   drifting('drift-sung4', 'section', 'Voice oohs (53) ×4 voices, alto line, drift −30 ¢/min only', 53, LINES.A!, -30, 4)
+  // Long tones: three of the sections above, the same voices, offsets and late starts, at half the
+  // tempo (holds of 3–5 s, as a long-tone drill holds them). A section's centre carries a chance
+  // error from its voices' beats that falls as the hold grows; these show how far.
+  for (const id of ['sung-S4', 'sung-T6', 'sung-B12']) {
+    const s = specs.find(x => x.id === id)!
+    specs.push({ ...s, id: `${id}-long`, label: `${s.label}, long tones (33 bpm)`, tempo: 33 })
+  }
   return specs
 }
 
