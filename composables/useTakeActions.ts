@@ -1,7 +1,7 @@
 import type { RescoreBody } from '#shared/schemas/take'
 import type { TakeReport } from '#shared/types/take'
 
-export type TakeAction = 'reanalyse' | 'withdraw' | 'restore'
+type TakeAction = 'reanalyse' | 'withdraw' | 'restore'
 
 const DONE: Record<TakeAction, string> = {
   reanalyse: 'The take is queued for a fresh analysis.',
