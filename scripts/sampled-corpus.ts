@@ -625,6 +625,25 @@ export function fixtureSpecs (): TakeSpec[] {
       repeats: 'rearticulate', gapS: 0.1, rate: 16000,
     },
     {
+      // Six singers (voice oohs) on long tones of 4.5 s, as a long-tone drill holds them: each voice
+      // with its own detune, vibrato, slow wander and start.
+      id: 'section-oohs-long', kind: 'section', label: 'Voice oohs (53) ×6 voices, long tones (40 bpm, 3 beats each)',
+      tempo: 40, beats: [3, 3, 3, 3, 3], part: 'P',
+      parts: [{
+        name: 'P', notes: [55, 57, 53, 55, 60],
+        voices: [
+          { program: 53, detuneCents: 5, vibrato: { rateHz: 5.3, extentCents: 16, phase: 0.4 }, wander: [{ rateHz: 0.31, cents: 1.0, phase: 1.9 }, { rateHz: 0.88, cents: 0.7, phase: 4.2 }], startS: 0.018 },
+          { program: 53, detuneCents: -4, vibrato: { rateHz: 5.9, extentCents: 11, phase: 2.2 }, wander: [{ rateHz: 0.36, cents: 1.3, phase: 0.6 }, { rateHz: 1.12, cents: 0.5, phase: 3.0 }], startS: 0 },
+          { program: 53, detuneCents: 1, vibrato: { rateHz: 4.9, extentCents: 24, phase: 4.6 }, wander: [{ rateHz: 0.27, cents: 0.8, phase: 5.1 }, { rateHz: 0.79, cents: 0.9, phase: 1.4 }], startS: 0.027 },
+          { program: 53, detuneCents: -7, vibrato: { rateHz: 6.2, extentCents: 9, phase: 1.3 }, wander: [{ rateHz: 0.44, cents: 1.1, phase: 2.7 }, { rateHz: 0.95, cents: 0.6, phase: 5.9 }], startS: 0.009 },
+          { program: 53, detuneCents: 3, vibrato: { rateHz: 5.5, extentCents: 19, phase: 3.8 }, wander: [{ rateHz: 0.33, cents: 1.4, phase: 0.2 }, { rateHz: 1.21, cents: 0.4, phase: 4.8 }], startS: 0.035 },
+          { program: 53, detuneCents: -2, vibrato: { rateHz: 5.0, extentCents: 14, phase: 5.5 }, wander: [{ rateHz: 0.39, cents: 0.9, phase: 3.6 }, { rateHz: 0.84, cents: 0.8, phase: 0.9 }], startS: 0.014 },
+        ],
+      }],
+      offsets: [6, -8, 3, -5, 9], driftCentsPerMin: 0, leadInS: 0.9, lateS: [0.03, 0.01, 0.04, 0, 0.02],
+      repeats: 'rearticulate', gapS: 0.1, rate: 16000,
+    },
+    {
       id: 'oohs-bass-vibrato', kind: 'voice', label: 'Voice oohs (53), one singer, low line with vibrato ±15 ¢ at 5 Hz',
       tempo: 72, beats, part: 'P', parts: [{ name: 'P', notes: [48, 53, 55, 48, 45, 48], voices: [{ program: 53, detuneCents: 0, vibrato: { rateHz: 5.0, extentCents: 15, phase: 2.0 } }] }],
       offsets: [4, -7, 10, -2, 6, -9], driftCentsPerMin: 0, leadInS: 0.7, lateS: [0.01, 0.04, 0, 0.02, 0.05, 0.03],

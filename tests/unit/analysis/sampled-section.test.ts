@@ -149,6 +149,38 @@ describe('sampled section: four singers on one part (voice oohs), each starting 
   })
 })
 
+describe('sampled section: six singers on long tones', async () => {
+  // section-oohs-long: six voices (voice oohs) on holds of 4.5 s (40 bpm, three beats), each
+  // detuned (−7…+5 ¢) with its own vibrato (9–24 ¢), slow wander and start (up to 35 ms apart):
+  // our own choice, in truth.json. The truth is aubiopitch on each voice rendered alone; Praat's
+  // autocorrelation pitch on the same solo renders, over the same windows, read 0.35–0.51 ¢ lower
+  // when the fixture was made, so the truth itself is settled to about half a cent.
+  const { m, holds } = await run('section-oohs-long')
+
+  it('finds every hold at its onset and keeps the take\'s tempo within 1 %', () => {
+    expect(Math.abs(m.timeScale - 1)).toBeLessThan(0.01)
+    for (const t of holds) {
+      const h = m.holds.find(x => x.index === t.index)!
+      expect(h.reasonCode, `hold ${t.index}`).toBeNull()
+      expect(Math.abs(h.startS - t.onS), `hold ${t.index}`).toBeLessThan(0.1)
+    }
+  })
+
+  it('measures each centre within 1 ¢ of the mean of the voices (median within 0.6 ¢), the truth inside the range shown', () => {
+    // A section's centre carries a chance error from its voices' beats that falls as the hold
+    // grows; on long tones the section target (median 0.5 ¢, p95 1.5 ¢) is within reach, where
+    // the holds of about 1.8 s of the benchmark's sections miss it.
+    const errs = holds.map((t) => {
+      const h = m.holds.find(x => x.index === t.index)!
+      const err = Math.abs(cents(h.detectedHz!, t.truthHz))
+      expect(err, `hold ${t.index}`).toBeLessThan(1)
+      expect(err, `hold ${t.index}`).toBeLessThanOrEqual(centreRangeCents(h.centreErrorCents)!)
+      return err
+    }).sort((a, b) => a - b)
+    expect(errs[errs.length >> 1]!).toBeLessThan(0.6)
+  })
+})
+
 describe('sampled section: four singers whose beats dip deeper than their repeated notes re-strike', async () => {
   // section-oohs-repeats: four voices (voice oohs) at 60 bpm, each detuned (−4…+4 ¢) with its own
   // vibrato (9–13 ¢) and start (up to 38 ms apart), drifting −30 ¢/min; two repeated E4s re-struck
