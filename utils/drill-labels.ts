@@ -1,5 +1,5 @@
 // Words for tuning systems and note names, as the drill and take screens show them.
-import { SystemOptions, type SystemName } from '../shared/drill/schema'
+import type { SystemName, SystemOptions } from '#shared/drill/schema'
 
 /** Human names of the tuning systems (ours; the maths is the trade's). */
 export const SYSTEM_LABELS: Record<SystemName, string> = {
@@ -35,13 +35,13 @@ export function describeSystem(system: SystemOptions | SystemName | string | nul
 /**
  * The system a take report was scored in, with its options: the report's own when it carries
  * them; else the drill's when the names agree (or the report names none); else the named system
- * with the schema's default options.
+ * with default options.
  */
 export function reportSystemOptions(reported: SystemOptions | string | null | undefined, drill: SystemOptions | null | undefined): SystemOptions {
   if (reported && typeof reported === 'object') return reported
   if (drill && (!reported || reported === drill.name)) return drill
-  if (typeof reported === 'string' && reported in SYSTEM_LABELS) return SystemOptions.parse({ name: reported })
-  return drill ?? SystemOptions.parse({ name: 'equal' })
+  if (typeof reported === 'string' && reported in SYSTEM_LABELS) return { name: reported as SystemName, seventh: 'harmonic', fraction: '1/4' }
+  return drill ?? { name: 'equal', seventh: 'harmonic', fraction: '1/4' }
 }
 
 const ACCIDENTALS: Record<string, string> = { 'bb': '𝄫', 'b': '♭', '#': '♯', '##': '𝄪', 'x': '𝄪', '': '' }
