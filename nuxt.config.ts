@@ -101,6 +101,19 @@ export default defineNuxtConfig({
       devMailbox: 'auto',
     },
   },
+  vite: {
+    // The packages the pages import, pre-bundled for the browser from the start: one found only
+    // when a page first loads (zod through a client plugin, @tonaljs/tonal through shared code)
+    // makes Vite re-bundle and reload that page, failing its first script import
+    // (https://vite.dev/guide/dep-pre-bundling.html).
+    optimizeDeps: {
+      include: [
+        'zod', '@tonaljs/tonal', '@tonejs/midi', 'chart.js', 'vue-chartjs', 'wavesurfer.js',
+        'wavesurfer.js/dist/plugins/regions.esm.js', 'papaparse', 'fflate', 'fast-xml-parser',
+        'opensheetmusicdisplay',
+      ],
+    },
+  },
   nitro: {
     experimental: { tasks: false },
     // The server runs on Node 20: BigInt literals (exact tuning ratios) need no lowering.
