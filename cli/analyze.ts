@@ -65,7 +65,7 @@ export function formatReport (drill: DrillDocument, report: TakeReport): string 
     }
     rows.push([
       String(h.index + 1), h.note, h.member ?? '—', h.targetHz.toFixed(3), h.detectedHz.toFixed(3),
-      `${signed(h.centsFromTarget!, 2)} ¢${centreRangeText(h.centreErrorCents) ? ` ${centreRangeText(h.centreErrorCents)}` : ''}`, `${signed(h.centsFromEqual!, 2)} ¢`, h.withinTolerance ? 'yes' : 'no',
+      [`${signed(h.centsFromTarget!, 2)} ¢`, centreRangeText(h.centreErrorCents)].filter(Boolean).join(' '), `${signed(h.centsFromEqual!, 2)} ¢`, h.withinTolerance ? 'yes' : 'no',
       h.spreadCents === null ? '—' : `${h.spreadCents.toFixed(1)} ¢`, h.slopeCentsPerS === null ? '—' : `${signed(h.slopeCentsPerS, 1)} ¢/s`,
       h.vibrato ? `±${h.vibrato.extentCents.toFixed(0)} ¢ ${h.vibrato.rateHz.toFixed(1)} Hz` : '—', h.confidence.toFixed(2),
     ])
