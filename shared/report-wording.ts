@@ -162,6 +162,40 @@ export function centreRangeText(centreErrorCents: number | null | undefined): st
   return r === null ? null : `±${formatNumber(r, 1, '¢')}`
 }
 
+/** Holds sung by several voices that last less than this (seconds) are "short" for the summary. */
+export const SEVERAL_VOICES_LONG_S = 3
+
+/** Above this median ± (cents) over short holds sung by several voices, the summary says so. */
+export const SEVERAL_VOICES_WIDE_CENTS = 1.5
+
+/**
+ * A note for the take's summary when holds sung by several voices at once were short (under
+ * SEVERAL_VOICES_LONG_S) and their centres are known only roughly (median ± over them above
+ * SEVERAL_VOICES_WIDE_CENTS); null otherwise. The voices' beats need time to average out: on the
+ * sampled corpus's sections (`npm run bench:analysis`) holds of about 1.8 s came within
+ * 0.7 / 3.3 ¢ (median / 95th percentile) of the voices' mean with a median ± of 2.6 ¢, long tones
+ * of 3–5 s within 0.4 / 1.5 ¢ with a median ± of 2.1 ¢.
+ */
+export function severalVoicesNote(holds: ReadonlyArray<{ voiceSpreadCents?: number | null, centreErrorCents?: number | null, startS?: number | null, endS?: number | null }>): string | null {
+  const ranges = holds
+    .filter((h) => {
+      const a = finite(h.startS)
+      const b = finite(h.endS)
+      return finite(h.voiceSpreadCents) !== null && a !== null && b !== null && b - a < SEVERAL_VOICES_LONG_S
+    })
+    .map(h => centreRangeCents(h.centreErrorCents))
+    .filter((r): r is number => r !== null)
+    .sort((a, b) => a - b)
+  if (!ranges.length) return null
+  const mid = ranges.length >> 1
+  const median = ranges.length % 2 ? ranges[mid]! : (ranges[mid - 1]! + ranges[mid]!) / 2
+  if (!(median > SEVERAL_VOICES_WIDE_CENTS)) return null
+  const n = ranges.length
+  return `${n} ${n === 1 ? 'hold' : 'holds'} of under ${SEVERAL_VOICES_LONG_S} seconds ${n === 1 ? 'was' : 'were'} sung by several voices at once. ` +
+    `Their beats blur the centre of a short hold: ${n === 1 ? 'it is' : 'these are'} known to within ±${formatNumber(median, 1, '¢')}${n === 1 ? '' : ' (median)'}. ` +
+    `Holding each chord for ${SEVERAL_VOICES_LONG_S} seconds or more narrows it.`
+}
+
 function finite(v: number | null | undefined): number | null {
   return typeof v === 'number' && Number.isFinite(v) ? v : null
 }

@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest'
 import { mountSuspended } from '@nuxt/test-utils/runtime'
 import TakeSummary from '~/components/takes/TakeSummary.vue'
 import TakeHistory from '~/components/takes/TakeHistory.vue'
+import type { ReportHold as TakeHold } from '#shared/types/take'
 
 describe('TakeSummary', () => {
   it('shows the take figures with signed drift and member bias, U+2212 for negatives', async () => {
@@ -37,6 +38,23 @@ describe('TakeSummary', () => {
     expect(w.find('[data-testid="summary-share"]').text()).toBe('—')
     // No drift figure without holds: the words say why instead of a dash or a number.
     expect(w.find('[data-testid="summary-drift"]').text()).toContain('not enough holds')
+  })
+})
+
+describe('TakeSummary for a part sung by several voices', () => {
+  const summary = { meanAbsCents: 4.2, withinToleranceShare: 0.75, driftCentsPerMin: null, holdsFound: 2, holdsExpected: 2 }
+  const hold = (voiceSpreadCents: number | null, centreErrorCents: number) => ({ index: 0, voiceSpreadCents, centreErrorCents, startS: 2, endS: 3.8 }) as unknown as TakeHold
+
+  it('says how closely the centres are known and that longer holds narrow it', async () => {
+    const w = await mountSuspended(TakeSummary, { props: { summary, tolerance: 10, systemLabel: 'Equal', a4: 440, holds: [hold(13, 1.2), hold(11, 1.5)] } })
+    // Ranges 2.7 and 3.3 ¢ (2 × se + 0.25, rounded up): median 3.0 ¢.
+    expect(w.find('[data-testid="summary-voices"]').text()).toContain('known to within ±3.0 ¢ (median)')
+    expect(w.find('[data-testid="summary-voices"]').text()).toContain('3 seconds or more')
+  })
+
+  it('says nothing of voices for one player', async () => {
+    const w = await mountSuspended(TakeSummary, { props: { summary, tolerance: 10, systemLabel: 'Equal', a4: 440, holds: [hold(null, 1.2), hold(null, 1.5)] } })
+    expect(w.find('[data-testid="summary-voices"]').exists()).toBe(false)
   })
 })
 

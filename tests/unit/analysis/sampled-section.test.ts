@@ -11,7 +11,7 @@ import { describe, expect, it } from 'vitest'
 import { decodeAudio } from '../../../server/analysis/decode'
 import { measureTake } from '../../../server/analysis/measure'
 import type { ExpectedHold } from '../../../server/analysis/types'
-import { centreRangeCents } from '../../../shared/report-wording'
+import { centreRangeCents, severalVoicesNote } from '../../../shared/report-wording'
 import { cents, equalHz } from './helpers'
 
 const dir = join(__dirname, '../../fixtures/sampled')
@@ -166,6 +166,11 @@ describe('sampled section: four singers on one part (voice oohs), each starting 
   it('puts the truth inside the ± range the report shows for every hold', () => {
     expectTruthInsideRange(m, holds)
   })
+
+  it('gets the summary\'s note that several voices blur short holds', () => {
+    // The holds last about 2.5 s (the fixture's tempo), each with a voice spread told.
+    expect(severalVoicesNote(m.holds)).toMatch(/^[2-5] holds of under 3 seconds were sung by several voices at once\./)
+  })
 })
 
 describe('sampled section: six singers on long tones', async () => {
@@ -186,6 +191,10 @@ describe('sampled section: six singers on long tones', async () => {
     // the holds of about 1.8 s of the benchmark's sections miss it.
     expectCentresWithin1Cent(m, holds)
     expectTruthInsideRange(m, holds)
+  })
+
+  it('gets no note that the holds were too short for several voices', () => {
+    expect(severalVoicesNote(m.holds)).toBeNull()
   })
 })
 

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { CENTRE_RANGE_FLOOR_CENTS, centreRangeCents, centreRangeText, DRIFT_TOO_FEW, driftText, formatWholeCents, holdKind, timingText, voicesText, withReferencePitch, wrongNote, wrongNoteText } from '../../../shared/report-wording'
+import { CENTRE_RANGE_FLOOR_CENTS, centreRangeCents, centreRangeText, DRIFT_TOO_FEW, SEVERAL_VOICES_LONG_S, SEVERAL_VOICES_WIDE_CENTS, severalVoicesNote, driftText, formatWholeCents, holdKind, timingText, voicesText, withReferencePitch, wrongNote, wrongNoteText } from '../../../shared/report-wording'
 import { computeTargets } from '../../../shared/tuning/index'
 import type { DrillDocument } from '../../../shared/drill/schema'
 
@@ -133,5 +133,35 @@ describe('a hold says how closely its centre is known', () => {
       expect(centreRangeCents(v)).toBeNull()
       expect(centreRangeText(v)).toBeNull()
     }
+  })
+})
+
+describe('the summary says when several voices blur the holds\' centres', () => {
+  // Standard errors chosen so the ranges are round: 2 × se + 0.25, rounded up to 0.1 ¢.
+  const section = (se: number, durationS = 1.8) => ({ voiceSpreadCents: 12, centreErrorCents: se, startS: 10, endS: 10 + durationS })
+  const solo = (se: number) => ({ voiceSpreadCents: null, centreErrorCents: se, startS: 10, endS: 11.8 })
+
+  it('gives the median ± over the short holds sung by several voices, with the advice to hold longer', () => {
+    expect(SEVERAL_VOICES_WIDE_CENTS).toBe(1.5)
+    expect(SEVERAL_VOICES_LONG_S).toBe(3)
+    // Ranges 1.3, 2.7 and 3.3 ¢: the median is 2.7 ¢. Neither the one-voice hold (±0.5 ¢) nor
+    // the long tone (4 s, ±5.3 ¢) counts.
+    const note = severalVoicesNote([section(0.5), section(1.2), section(1.5), solo(0.1), section(2.5, 4)])
+    expect(note).toBe('3 holds of under 3 seconds were sung by several voices at once. Their beats blur the centre of a short hold: ' +
+      'these are known to within ±2.7 ¢ (median). Holding each chord for 3 seconds or more narrows it.')
+    // Two holds: the mean of the middle pair, (1.3 + 2.7) / 2 = 2.0.
+    expect(severalVoicesNote([section(0.5), section(1.2)])).toContain('±2.0 ¢ (median)')
+    expect(severalVoicesNote([section(1.2)])).toBe('1 hold of under 3 seconds was sung by several voices at once. Their beats blur the centre ' +
+      'of a short hold: it is known to within ±2.7 ¢. Holding each chord for 3 seconds or more narrows it.')
+  })
+
+  it('says nothing when the centres are known closely, for long tones, for one voice, or without the figures', () => {
+    // 2 × 0.6 + 0.25 = 1.45 → 1.5 ¢: not above the threshold.
+    expect(severalVoicesNote([section(0.6), section(0.6)])).toBeNull()
+    expect(severalVoicesNote([section(2, 3), section(2, 4.5)])).toBeNull()
+    expect(severalVoicesNote([solo(3), solo(4)])).toBeNull()
+    expect(severalVoicesNote([{ voiceSpreadCents: 14, centreErrorCents: null, startS: 1, endS: 2 }, { voiceSpreadCents: Number.NaN, centreErrorCents: 3, startS: 1, endS: 2 }])).toBeNull()
+    expect(severalVoicesNote([{ voiceSpreadCents: 14, centreErrorCents: 3 }])).toBeNull()
+    expect(severalVoicesNote([])).toBeNull()
   })
 })
