@@ -27,6 +27,19 @@ registerEndpoint('/api/ensembles/9/assignments', {
 })
 
 describe('AssignmentForm', () => {
+  it('sends the takes allowed typed in the number field as a whole number', async () => {
+    refuse = false
+    sent = null
+    const w = await mountSuspended(AssignmentForm, { props })
+    await w.find('[data-testid="assign-section-Alto"]').setValue(true)
+    // A number input's value reaches the form as text (a browser's number field, typed "3").
+    await w.find('input[name="attempts"]').setValue('3')
+    await w.find('form').trigger('submit')
+    await new Promise(r => setTimeout(r, 50))
+    expect(sent).toMatchObject({ sectionIds: [21], attempts: 3 })
+    w.unmount()
+  })
+
   it('asks for a section or player first and sends nothing', async () => {
     sent = null
     const w = await mountSuspended(AssignmentForm, { props, attachTo: document.body })
