@@ -7,7 +7,9 @@ import type { DrillListItem } from '#shared/types/drill-view'
  * An ensemble's assignments a page at a time, with what the assignment form needs: its sections,
  * members (every page) and active drills. Nothing is fetched while `ensembleId` is null.
  */
-export function useEnsembleAssignments(ensembleId: Ref<number | null>, opts: { page: Ref<number>, archived: Ref<boolean>, withForm: Readonly<Ref<boolean>> }) {
+export function useEnsembleAssignments(ensembleId: Readonly<Ref<number | null>>, opts: { page: Ref<number>, archived: Ref<boolean>, withForm: Readonly<Ref<boolean>> }) {
+  // The request's cookies go with the calls made while the server draws the page.
+  const $fetch = useRequestFetch()
   const list = useAsyncData<AssignmentList | null>(
     () => `assignments:${ensembleId.value}:${opts.page.value}:${opts.archived.value}`,
     () => ensembleId.value

@@ -172,4 +172,23 @@ describe('assigning a drill and recording against it', () => {
       await context.close()
     }
   })
+
+  it('director: the server draws the ensemble\'s assignments the browser then hydrates, with no false "nothing assigned"', { timeout: 300_000 }, async () => {
+    for (const path of ['/assignments', `/assignments?ensemble=${state.ensembleId}`]) {
+      const { context, page } = await newPage(390, 900)
+      await signIn(page, DIRECTOR)
+      const problems: string[] = []
+      page.on('console', (m) => { if (/hydrat|mismatch/i.test(m.text())) problems.push(m.text()) })
+      const res = await page.goto(`${app.url}${path}`)
+      // The page as the server sent it, before any script ran.
+      const html = await res!.text()
+      expect(html).toContain(TITLE)
+      expect(html).not.toContain('No assignments yet')
+      await appReady(page)
+      await page.getByText(TITLE).first().waitFor()
+      expect(await page.getByText('No assignments yet').count()).toBe(0)
+      expect(problems).toEqual([])
+      await context.close()
+    }
+  })
 })

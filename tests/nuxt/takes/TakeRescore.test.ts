@@ -4,8 +4,9 @@
 import { describe, expect, it } from 'vitest'
 import { mountSuspended } from '@nuxt/test-utils/runtime'
 import TakeRescore from '~/components/takes/TakeRescore.vue'
+import type { SystemOptions } from '#shared/drill/schema'
 
-const props = { system: { name: 'equal' as const }, a4: 440, tolerance: 10 }
+const props = { system: { name: 'equal' } as SystemOptions, a4: 440, tolerance: 10 }
 
 describe('TakeRescore', () => {
   it('keeps the form and its button while both numbers are changed, and sends them as numbers', async () => {
