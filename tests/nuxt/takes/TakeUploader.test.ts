@@ -137,6 +137,20 @@ describe('TakeUploader', () => {
     expect(w.find('[data-testid="chosen-file"]').text()).toContain('alto.wav')
   })
 
+  it('does not say "Uploaded" beside a refusal, even when every byte went', async () => {
+    const w = await mountWithFile()
+    await w.find('form').trigger('submit')
+    FakeXhr.all[0]!.progress(1024, 1024)
+    await flushPromises()
+    expect(w.text()).toContain('Stored; waiting for the server')
+    FakeXhr.all[0]!.respond(415, { statusCode: 415, statusMessage: 'Refused', data: { code: 'not_audio' } })
+    await flushPromises()
+    expect(w.find('[data-testid="upload-error"]').exists()).toBe(true)
+    expect(w.find('progress').exists()).toBe(false)
+    expect(w.text()).not.toContain('Uploaded')
+    expect(w.text()).not.toContain('Stored')
+  })
+
   it('lists field issues of a 400', async () => {
     const w = await mountWithFile()
     await w.find('form').trigger('submit')
