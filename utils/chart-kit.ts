@@ -50,6 +50,27 @@ export function chordLabel(chordIndex: number): string {
   return `Chord ${chordIndex + 1}`
 }
 
+/** Longest line of a chart's category label before it is cut short with "…" (the table beside the chart has it whole). */
+export const LABEL_LINE_MAX = 30
+
+/** `text` cut to `max` characters, the last one "…" when it was longer. */
+export function shortLine(text: string, max = LABEL_LINE_MAX): string {
+  const chars = [...text.trim()]
+  return chars.length <= max ? chars.join('') : `${chars.slice(0, max - 1).join('').trimEnd()}…`
+}
+
+/**
+ * A worst hold's category label as lines (Chart.js draws an array as one line each), short
+ * enough for a phone: the drill; the chord, part and member; the sections and how many times.
+ */
+export function worstHoldLabel(h: { chordIndex: number, part: string, member: string | null, sections: string[], n: number }, drillTitle: string): string[] {
+  return [
+    shortLine(drillTitle),
+    shortLine(`${chordLabel(h.chordIndex)} · ${h.part}${h.member ? ` (${h.member})` : ''}`),
+    shortLine(`${h.sections.length ? `${h.sections.join(', ')} · ` : ''}${h.n}×`),
+  ]
+}
+
 /** Axis options for cents with a signed tick label. */
 export function centsAxis(title: string) {
   return {
