@@ -3,6 +3,7 @@
 // keyboard entry, column edits and checks are tested without a browser.
 import { Key } from '@tonaljs/tonal'
 import { DrillDocument, issuePath, type DrillInput, type SystemOptions } from './schema'
+import { plainIssueMessage } from '../text'
 import { concertNote, writtenNote } from '../tuning/transpose'
 import { parseKey, parseNote } from '../tuning/pitch'
 import { analyzeChord } from '../tuning/chord'
@@ -64,18 +65,37 @@ export function checkDraft(draft: GridDraft): { document: DrillDocument | null, 
       issues.push({ path: `chords.${ci}.notes`, chord: ci, part: null, message: `Chord ${ci + 1} is empty: every part rests. Give it a note or delete the chord` })
     }
   })
-  const parsed = DrillDocument.safeParse(draftDocument(draft))
+  // Field messages come from the schema; plainIssueMessage words anything it leaves to zod.
+  const parsed = DrillDocument.safeParse(draftDocument(draft), { error: plainIssueMessage })
   if (!parsed.success) {
     for (const i of parsed.error.issues) {
       const path = issuePath(i.path)
-      if (issues.some(x => x.path === path)) continue
       const chord = i.path[0] === 'chords' && typeof i.path[1] === 'number' ? i.path[1] : null
       const part = i.path[0] === 'parts' && typeof i.path[1] === 'number' ? i.path[1] : null
-      issues.push({ path, chord, part, message: i.message })
+      const message = sentence(i.code === 'custom' ? i.message : `${place(draft, i.path)}${i.message}`)
+      // One line per problem: a field the blank-cell check (or an earlier issue) already named stays one line.
+      if (issues.some(x => x.path === path || x.message === message)) continue
+      issues.push({ path, chord, part, message })
     }
   }
   return { document: issues.length || !parsed.success ? null : parsed.data, issues }
 }
+
+/** Where a field-level issue is, as people count ("Chord 3: ", "Part 2: "); settings name themselves. */
+function place(draft: GridDraft, path: readonly PropertyKey[]): string {
+  const n = typeof path[1] === 'number' ? path[1] + 1 : null
+  if (path[0] === 'chords' && n !== null) {
+    const part = path[2] === 'notes' && typeof path[3] === 'string' ? `, ${path[3]}` : ''
+    return `Chord ${n}${part}: `
+  }
+  if (path[0] === 'parts' && n !== null) return `Part ${n}${draft.parts[n - 1]?.name.trim() ? ` (${draft.parts[n - 1]!.name.trim()})` : ''}: `
+  if (path[0] === 'system') return 'Tuning system: '
+  if (path[0] === 'parts') return 'Parts: '
+  if (path[0] === 'chords') return 'Chords: '
+  return ''
+}
+
+const sentence = (text: string) => text.charAt(0).toUpperCase() + text.slice(1)
 
 // ---- note entry --------------------------------------------------------------------------------
 

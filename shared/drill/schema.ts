@@ -13,6 +13,37 @@ export type SystemName = (typeof SYSTEM_NAMES)[number]
 
 export const A4_MIN = 415
 export const A4_MAX = 466
+export const TEMPO_MIN = 20
+export const TEMPO_MAX = 300
+/** Largest tolerance: beyond half a semitone a hold counts as a wrong note. */
+export const TOLERANCE_MAX = 50
+export const TITLE_MAX = 120
+export const PART_NAME_MAX = 60
+export const BEATS_MAX = 64
+
+/**
+ * What each drill field accepts, in words a director reads. The schema carries them, so the
+ * editor's fields, its summary and the routes' 400 answers all say the same thing.
+ */
+export const DRILL_MESSAGES = {
+  title: 'Give the drill a title',
+  titleTooLong: `A title of at most ${TITLE_MAX} characters`,
+  tempo: `A tempo from ${TEMPO_MIN} to ${TEMPO_MAX} beats per minute`,
+  a4: `A reference pitch from ${A4_MIN} to ${A4_MAX} Hz`,
+  tolerance: `A tolerance above 0 and at most ${TOLERANCE_MAX} cents`,
+  partName: 'give the part a name',
+  partNameTooLong: `a part name of at most ${PART_NAME_MAX} characters`,
+  beats: `a length above 0 and at most ${BEATS_MAX} beats`,
+  symbol: 'a chord symbol of at most 20 characters',
+  note: 'a note name with octave such as Bb3 or F#4, or a rest',
+} as const
+
+/** Beats per minute. */
+export const Tempo = z.number({ error: DRILL_MESSAGES.tempo }).min(TEMPO_MIN, DRILL_MESSAGES.tempo).max(TEMPO_MAX, DRILL_MESSAGES.tempo)
+/** Reference pitch A4 in Hz. */
+export const ReferencePitch = z.number({ error: DRILL_MESSAGES.a4 }).min(A4_MIN, DRILL_MESSAGES.a4).max(A4_MAX, DRILL_MESSAGES.a4)
+/** Tolerance in ± cents. */
+export const Tolerance = z.number({ error: DRILL_MESSAGES.tolerance }).positive(DRILL_MESSAGES.tolerance).max(TOLERANCE_MAX, DRILL_MESSAGES.tolerance)
 
 /** Options of a tuning system; each system reads only the ones it needs. */
 export const SystemOptions = z.object({
@@ -56,34 +87,31 @@ export const SystemOptions = z.object({
 export type SystemOptions = z.infer<typeof SystemOptions>
 
 export const DrillPart = z.object({
-  name: userText(60),
+  name: userText(PART_NAME_MAX, 1, { min: DRILL_MESSAGES.partName, max: DRILL_MESSAGES.partNameTooLong }),
   /** Instrument id from shared/tuning/transpose.ts (e.g. 'voice-soprano', 'trumpet-bb'); concert pitch when absent. */
   instrument: z.string().min(1).optional(),
 })
 
 export const DrillChord = z.object({
   /** Length in beats (the tempo's beat). */
-  beats: z.number().positive().max(64),
+  beats: z.number({ error: DRILL_MESSAGES.beats }).positive(DRILL_MESSAGES.beats).max(BEATS_MAX, DRILL_MESSAGES.beats),
   /** Optional chord symbol ("C", "Am7", "G7/B"); settles ambiguous sets. */
-  symbol: userText(20).optional(),
+  symbol: userText(20, 1, { min: DRILL_MESSAGES.symbol, max: DRILL_MESSAGES.symbol }).optional(),
   /** Concert-pitch note with octave per part name ("Bb3", "F#4", "Cx5"), or null for a rest. */
-  notes: z.record(z.string(), z.string().min(2).max(6).nullable())
+  notes: z.record(z.string(), z.string().min(2, DRILL_MESSAGES.note).max(6, DRILL_MESSAGES.note).nullable())
     // Keyed by part name, cleaned as part names are (bidirectional controls, outer spaces).
     .transform(notes => Object.fromEntries(Object.entries(notes).map(([part, note]) => [stripBidi(part).trim(), note]))),
 })
 
 /** A drill document: what a director authors, imports from MIDI, and the analysis aligns to. */
 export const DrillDocument = z.object({
-  title: userText(120),
+  title: userText(TITLE_MAX, 1, { min: DRILL_MESSAGES.title, max: DRILL_MESSAGES.titleTooLong }),
   /** Key as "<tonic> major|minor", e.g. "Eb major". */
   key: z.string().regex(/^[A-Ga-g](#{1,2}|b{1,2}|x)?\s+(major|minor)$/, 'a key such as "Eb major"').default('C major'),
-  /** Beats per minute. */
-  tempo: z.number().min(20).max(300).default(60),
-  /** Reference pitch A4 in Hz. */
-  a4: z.number().min(A4_MIN).max(A4_MAX).default(440),
+  tempo: Tempo.default(60),
+  a4: ReferencePitch.default(440),
   system: SystemOptions.default({ name: 'equal', seventh: 'harmonic', fraction: '1/4' }),
-  /** Tolerance in ± cents. */
-  tolerance: z.number().positive().max(50).default(10),
+  tolerance: Tolerance.default(10),
   parts: z.array(DrillPart).min(1).max(16),
   chords: z.array(DrillChord).min(1).max(500),
 }).superRefine((drill, ctx) => {

@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { PASSWORD_MIN } from './auth'
-import { A4_MAX, A4_MIN, SYSTEM_NAMES } from '../drill/schema'
+import { A4_MAX, A4_MIN, SYSTEM_NAMES, TOLERANCE_MAX } from '../drill/schema'
 import { INSTRUMENTS } from '../tuning/transpose'
 import { ENSEMBLE_KINDS, MEMBER_ROLES, READINGS } from '../types/ensemble'
 
@@ -10,8 +10,7 @@ const name = (max: number, what: string) => z.string().trim().min(1, `Give the $
 const id = z.coerce.number().int().positive().max(Number.MAX_SAFE_INTEGER)
 const instrument = z.string().refine(v => Object.hasOwn(INSTRUMENTS, v), 'Choose an instrument or voice part from the list')
 
-/** Largest default tolerance: beyond half a semitone a hold counts as a wrong note. */
-export const TOLERANCE_MAX = 50
+export { TOLERANCE_MAX }
 
 /** PATCH /api/ensembles/:id (any of the fields). */
 export const EnsemblePatch = z.object({

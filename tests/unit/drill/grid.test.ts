@@ -123,6 +123,57 @@ describe('checks before saving', () => {
     expect(ok.document!.parts[2]).toEqual({ name: 'Tenor', instrument: 'voice-tenor' })
   })
 
+  // zod's own wording ("Too small: expected number to be >=415", "Invalid input") never reaches a director.
+  const RAW = /expected|>=|<=|Too small|Too big|Invalid input|undefined|\[object/
+  // The reference-pitch range 415–466 Hz (a semitone below and above A = 440 Hz, ISO 16) and the
+  // other limits are the product's own (shared/drill/schema.ts); the message states them in words.
+  const cell = (d: GridDraft, note: string) => setCell(d, 0, 0, note)
+  const setPartName = (d: GridDraft, name: string) => ({ ...d, parts: d.parts.map((p, i) => (i === 1 ? { ...p, name } : p)) })
+  const withChord = (d: GridDraft, patch: Partial<GridDraft['chords'][number]>) => ({ ...d, chords: d.chords.map((c, i) => (i === 0 ? { ...c, ...patch } : c)) })
+  it.each<[string, (d: GridDraft) => GridDraft, string]>([
+    ['an empty title', d => ({ ...d, title: '' }), 'Give the drill a title'],
+    ['a title of spaces', d => ({ ...d, title: '   ' }), 'Give the drill a title'],
+    ['a title of 121 characters', d => ({ ...d, title: 'x'.repeat(121) }), 'A title of at most 120 characters'],
+    ['A4 = 0', d => ({ ...d, a4: 0 }), 'A reference pitch from 415 to 466 Hz'],
+    ['A4 = 414.9', d => ({ ...d, a4: 414.9 }), 'A reference pitch from 415 to 466 Hz'],
+    ['A4 = 467', d => ({ ...d, a4: 467 }), 'A reference pitch from 415 to 466 Hz'],
+    ['A4 not a number', d => ({ ...d, a4: Number.NaN }), 'A reference pitch from 415 to 466 Hz'],
+    ['tolerance −5', d => ({ ...d, tolerance: -5 }), 'A tolerance above 0 and at most 50 cents'],
+    ['tolerance 0', d => ({ ...d, tolerance: 0 }), 'A tolerance above 0 and at most 50 cents'],
+    ['tolerance 51', d => ({ ...d, tolerance: 51 }), 'A tolerance above 0 and at most 50 cents'],
+    ['tempo 0', d => ({ ...d, tempo: 0 }), 'A tempo from 20 to 300 beats per minute'],
+    ['tempo 301', d => ({ ...d, tempo: 301 }), 'A tempo from 20 to 300 beats per minute'],
+    ['tempo infinite', d => ({ ...d, tempo: Number.POSITIVE_INFINITY }), 'A tempo from 20 to 300 beats per minute'],
+    ['an empty part name', d => setPartName(d, ' '), 'Part 2: give the part a name'],
+    ['a part name of 61 characters', d => setPartName(d, 'y'.repeat(61)), `Part 2 (${'y'.repeat(61)}): a part name of at most 60 characters`],
+    ['a duplicate part name', d => setPartName(d, 'Soprano'), 'Duplicate part name "Soprano"'],
+    ['0 beats', d => withChord(d, { beats: 0 }), 'Chord 1: a length above 0 and at most 64 beats'],
+    ['65 beats', d => withChord(d, { beats: 65 }), 'Chord 1: a length above 0 and at most 64 beats'],
+    ['a chord symbol of 21 characters', d => withChord(d, { symbol: 'C'.repeat(21) }), 'Chord 1: a chord symbol of at most 20 characters'],
+    ['a one-letter note', d => cell(d, 'C'), 'Chord 1, Soprano: a note name with octave such as Bb3 or F#4, or a rest'],
+    ['an unknown note', d => cell(d, 'H4'), 'Chord 1, part "Soprano": "H4" is not a note name with octave such as Bb3 or F#4'],
+  ])('words %s in plain language, once', (_, edit, message) => {
+    const { document, issues } = checkDraft(edit(base()))
+    expect(document).toBeNull()
+    expect(issues.map(i => i.message)).toContain(message)
+    for (const i of issues) expect(i.message).not.toMatch(RAW)
+    expect(new Set(issues.map(i => i.message)).size).toBe(issues.length)
+  })
+
+  it('lists every problem of a draft at once: blank cells, the title and the settings together', () => {
+    let d = insertChord(base(), 1)
+    d = { ...d, title: '', a4: 0, tolerance: -5 }
+    expect(checkDraft(d).issues.map(i => i.message)).toEqual([
+      'Chord 2, Soprano: no note yet; type a note or R for a rest',
+      'Chord 2, Alto: no note yet; type a note or R for a rest',
+      'Chord 2, Tenor: no note yet; type a note or R for a rest',
+      'Chord 2, Bass: no note yet; type a note or R for a rest',
+      'Give the drill a title',
+      'A reference pitch from 415 to 466 Hz',
+      'A tolerance above 0 and at most 50 cents',
+    ])
+  })
+
   it('gives the targets under each cell in cents from equal temperament', () => {
     // A pure major triad from its root: the third 5/4 = 386.314 ¢ (13.686 ¢ below the equal third),
     // the fifth 3/2 = 701.955 ¢ (1.955 ¢ above); just intonation, common practice.

@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest'
 import { DrillDocument, parseDrill, parseSystem } from '../../../shared/drill/schema'
 import { TuningError } from '../../../shared/tuning/index'
+import { plainIssueMessage } from '../../../shared/text'
 
 const good = {
   title: 'Long tones',
@@ -80,5 +81,21 @@ describe('drill documents', () => {
 
   it('the zod schema itself is still usable by forms', () => {
     expect(DrillDocument.safeParse(good).success).toBe(true)
+  })
+})
+
+describe('field messages the editor and the routes share', () => {
+  // The routes parse with plainIssueMessage as a fallback (server/utils/validate.ts); a field's own
+  // words win, so a 400 names the problem as the editor's field does. Limits: shared/drill/schema.ts.
+  it('answers a route-style parse in the field\'s own words, never zod\'s', () => {
+    const r = DrillDocument.safeParse({ ...good, title: '', a4: 0, tolerance: -5, tempo: 400 }, { error: plainIssueMessage })
+    expect(r.success).toBe(false)
+    expect(Object.fromEntries(r.error!.issues.map(i => [i.path.join('.'), i.message]))).toEqual({
+      title: 'Give the drill a title',
+      a4: 'A reference pitch from 415 to 466 Hz',
+      tolerance: 'A tolerance above 0 and at most 50 cents',
+      tempo: 'A tempo from 20 to 300 beats per minute',
+    })
+    expect(issueOf({ ...good, a4: 0 }).message).toBe('The drill is not valid: a4: A reference pitch from 415 to 466 Hz')
   })
 })
