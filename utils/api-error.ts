@@ -101,3 +101,12 @@ export function tooManyAttemptsMessage(retryAfterS: number | null): string {
   const minutes = Math.max(1, Math.ceil(retryAfterS / 60))
   return `Too many attempts, try again in ${minutes} ${minutes === 1 ? 'minute' : 'minutes'}`
 }
+
+/**
+ * Whether asking again can help: no answer at all, a timeout, too many requests or a server
+ * fault. Any other 4xx (403 not allowed, 404 not found or not yours, 400/422 refused input) gives
+ * the same answer until something else changes.
+ */
+export function isRetryable(status: number | null): boolean {
+  return status == null || status >= 500 || status === 408 || status === 429
+}

@@ -22,3 +22,30 @@ export function safeRedirect(value: unknown): string {
   if (AUTH_PAGES.includes(path)) return '/'
   return v
 }
+
+/** The screens an error state can send someone back to, nearest first, with how a link names them. */
+const PLACES: Array<[RegExp, string]> = [
+  [/^\/ensembles\/[^/]+$/, 'the ensemble'],
+  [/^\/ensembles$/, 'your ensembles'],
+  [/^\/drills$/, 'the drills'],
+  [/^\/takes$/, 'the takes'],
+  [/^\/assignments$/, 'your assignments'],
+  [/^\/charts$/, 'the charts'],
+  [/^\/review$/, 'the review queue'],
+  [/^\/admin$/, 'the admin area'],
+]
+
+/**
+ * Where a page that cannot be shown (403, 404) sends someone: the nearest screen above its path
+ * that exists ("/takes/6" → the takes), else the home page; null on the home page itself.
+ */
+export function wayBack(path: string, exists: (path: string) => boolean): { to: string, label: string } | null {
+  const segments = path.split(/[?#]/)[0]!.split('/').filter(Boolean)
+  if (!segments.length) return null
+  for (let n = segments.length - 1; n > 0; n--) {
+    const up = `/${segments.slice(0, n).join('/')}`
+    const place = PLACES.find(([re]) => re.test(up))
+    if (place && exists(up)) return { to: up, label: place[1] }
+  }
+  return { to: '/', label: 'your home page' }
+}

@@ -77,19 +77,24 @@ describe('the member editor', () => {
   const member = { userId: 3, name: 'Dee', role: 'director' as const, sectionId: null, section: null, instrument: null, reads: 'written' as const, readsFromAccount: false, email: 'dee@example.org' }
 
   it('sends only what changed and shows the server\'s reason when it refuses', async () => {
-    const w = await mountSuspended(MemberEditor, { props: { member, sections: [], ensembleId: 9 } })
+    const w = await mountSuspended(MemberEditor, { props: { member, sections: [], ensembleId: 9 }, attachTo: document.body })
     await w.find('select').setValue('player')
+    const saveButton = w.findAll('button').find(b => b.text() === 'Save')!
+    ;(saveButton.element as HTMLElement).focus()
     await w.find('form').trigger('submit')
     await vi.waitFor(() => expect(w.find('[role="alert"]').exists()).toBe(true), { timeout: 5000 })
     expect(patches.at(-1)).toEqual({ role: 'player' })
     expect(w.find('[role="alert"]').text()).toBe('The ensemble needs at least one director: make someone else director first')
     expect(w.emitted('saved')).toBeUndefined()
+    // Focus is on the reason, not dropped to the page, so a keyboard or screen-reader user hears it.
+    await vi.waitFor(() => expect(document.activeElement).toBe(w.find('[role="alert"]').element), { timeout: 5000 })
 
     await w.find('select').setValue('director')
     await w.findAll('select')[2]!.setValue('voice-alto')
     await w.find('form').trigger('submit')
     await vi.waitFor(() => expect(w.emitted('saved')).toHaveLength(1), { timeout: 5000 })
     expect(patches.at(-1)).toEqual({ instrument: 'voice-alto' })
+    w.unmount()
   })
 
   it('offers the account\'s own choice and sends it as an unset reading', async () => {

@@ -130,6 +130,8 @@ let current = takeDetail('analysed')
 registerEndpoint('/api/takes/9', () => current)
 registerEndpoint('/api/takes/10', () => ({ ...takeDetail('analysing'), id: 10 }))
 // Ana's take, opened by her director.
+// Not there, or not the caller's: the server says 404 either way.
+registerEndpoint('/api/takes/6', () => { throw createError({ statusCode: 404, statusMessage: 'Take not found' }) })
 registerEndpoint('/api/takes/11', () => takeDetail('analysed', { id: 11, player: { id: 8, name: 'Ana Ruiz' }, viewerIsPlayer: false, canWithdraw: false }))
 
 function mockBrowserOnly() {
@@ -166,6 +168,17 @@ describe('pages/takes/[id]', () => {
     expect(w.text()).toContain('This is Ana’s first take of this part')
     expect(w.text()).not.toContain('This is your first take')
     expect(w.text()).not.toContain('Record another take')
+  })
+
+  it('offers the way back to the takes, not a retry, for a take that is not found', async () => {
+    const w = await mountSuspended(TakePage, { route: '/takes/6' })
+    await flushPromises()
+    const alert = w.get('[role="alert"]')
+    expect(alert.text()).toContain('Take not found (404)')
+    expect(alert.find('button').exists()).toBe(false)
+    const back = alert.get('a')
+    expect(back.text()).toBe('Back to the takes')
+    expect(back.attributes('href')).toBe('/takes')
   })
 
   it('shows the live status panel while the take is analysed', async () => {

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
-import { routePatternToRegExp, safeRedirect } from '../../../utils/routes'
-import { apiProblem, tooManyAttemptsMessage } from '../../../utils/api-error'
+import { routePatternToRegExp, safeRedirect, wayBack } from '../../../utils/routes'
+import { apiProblem, isRetryable, tooManyAttemptsMessage } from '../../../utils/api-error'
 import { formatAbsolute, formatRelative } from '../../../utils/time'
 import { linkifyParts } from '../../../utils/linkify'
 import { reportSystemOptions } from '../../../utils/drill-labels'
@@ -21,6 +21,37 @@ describe('safeRedirect (no open redirect after sign-in)', () => {
     [42, '/'],
   ])('%j → %s', (input, out) => {
     expect(safeRedirect(input)).toBe(out)
+  })
+})
+
+describe('wayBack (where a page that cannot be shown sends someone)', () => {
+  // The product's screens, as the router has them.
+  const screens = ['/', '/takes', '/takes/:id', '/drills', '/drills/:id', '/drills/edit/:id', '/ensembles', '/ensembles/:id',
+    '/ensembles/:id/members', '/ensembles/:id/assignments/:assignmentId', '/admin', '/admin/audit', '/dev/mailbox', '/invitations/:token']
+  const patterns = screens.map(s => routePatternToRegExp(s.replace(/:(\w+)/g, ':$1()')))
+  const exists = (p: string) => patterns.some(re => re.test(p))
+  it.each([
+    ['/takes/6', { to: '/takes', label: 'the takes' }],
+    ['/ensembles/1/assignments/1', { to: '/ensembles/1', label: 'the ensemble' }],
+    ['/ensembles/1/members?x=1', { to: '/ensembles/1', label: 'the ensemble' }],
+    ['/ensembles/1', { to: '/ensembles', label: 'your ensembles' }],
+    ['/drills/edit/5', { to: '/drills', label: 'the drills' }],
+    ['/admin/audit', { to: '/admin', label: 'the admin area' }],
+    ['/dev/mailbox', { to: '/', label: 'your home page' }],
+    ['/invitations/abc', { to: '/', label: 'your home page' }],
+    ['/takes', { to: '/', label: 'your home page' }],
+    ['/', null],
+  ])('%s → %j', (path, out) => {
+    expect(wayBack(path, exists)).toEqual(out)
+  })
+})
+
+describe('isRetryable (RFC 9110 §15: a 4xx answers the same again, except 408; RFC 6585 §4: 429 passes)', () => {
+  it.each([
+    [null, true], [500, true], [502, true], [503, true], [408, true], [429, true],
+    [400, false], [403, false], [404, false], [409, false], [410, false], [422, false],
+  ])('%s → %s', (status, out) => {
+    expect(isRetryable(status)).toBe(out)
   })
 })
 
