@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { A4_MAX, A4_MIN, SystemOptions } from '../drill/schema'
+import { A4_MAX, A4_MIN, SystemOptions, TOLERANCE_MAX } from '../drill/schema'
 import { Id } from './id'
 
 // Take forms and the routes that receive them: one validation on both sides.
@@ -22,7 +22,7 @@ export type TakeFields = z.infer<typeof TakeFields>
 export const RescoreBody = z.object({
   system: SystemOptions,
   a4: z.number().min(A4_MIN).max(A4_MAX).optional(),
-  tolerance: z.number().positive().max(50).optional(),
+  tolerance: z.number().positive().max(TOLERANCE_MAX).optional(),
 })
 export type RescoreBody = z.infer<typeof RescoreBody>
 
